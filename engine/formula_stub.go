@@ -1,0 +1,4 @@
+package engine
+
+// cachedFormula is replaced by the compiled formula cache in formula.go.
+type cachedFormula struct{}

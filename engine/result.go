@@ -1,0 +1,157 @@
+package engine
+
+import "github.com/shopspring/decimal"
+
+// Result is what Evaluate computes for a project: values, choices, paths and
+// problems. It is read-only data; renderers and analyses read it, never the
+// other way round. Node-indexed slices follow Nodes (preorder).
+type Result struct {
+	Project  *Project
+	Problems []Problem
+	Nodes    []*Node // preorder; Nodes[i].index == i
+
+	Vars map[string]decimal.Decimal // evaluated variable values
+
+	value     []decimal.Decimal // expected value of the subtree at each node
+	ce        []decimal.Decimal // certainty equivalent (risk attitude active only)
+	choice    []int             // chosen branch at decisions, -1 elsewhere
+	ties      [][]int           // other branches tied with the choice
+	onPolicy  []bool            // reached when following the recommended choices
+	pathValue []decimal.Decimal // cash from the root to the node (plus payoff at ends)
+	pathProb  []decimal.Decimal // product of chance probabilities from the root
+	payoff    []decimal.Decimal // end payoff as evaluated
+	prob      [][]decimal.Decimal
+	cash      [][]decimal.Decimal
+	broken    []bool // node's own fields or subtree could not be evaluated
+	riskOn    bool
+	tolerance float64
+}
+
+// Problem is one validation or evaluation problem, with its place.
+type Problem struct {
+	NodeID string // "" for project-level problems
+	Branch int    // branch index, -1 when the problem is about the node itself
+	Field  string // "probability", "cash", "payoff", "variable x value", ...
+	Msg    string // full message naming the place
+}
+
+func (p Problem) Error() string { return p.Msg }
+
+func (r *Result) has(n *Node) bool {
+	return n != nil && n.index >= 0 && n.index < len(r.Nodes) && r.Nodes[n.index] == n
+}
+
+// Valid reports whether the project evaluated with no problems.
+func (r *Result) Valid() bool { return len(r.Problems) == 0 }
+
+// Value is the root's expected value (or certainty equivalent with a risk attitude).
+func (r *Result) Value() decimal.Decimal { return r.DisplayValue(r.Project.Root) }
+
+// ValueOf is the expected value of the subtree at n (cash below n plus payoffs).
+func (r *Result) ValueOf(n *Node) decimal.Decimal {
+	if !r.has(n) {
+		return decimal.Zero
+	}
+	return r.value[n.index]
+}
+
+// CertaintyEquivalent is the CE at n when a risk attitude is active; ok is false otherwise.
+func (r *Result) CertaintyEquivalent(n *Node) (decimal.Decimal, bool) {
+	if !r.riskOn || !r.has(n) {
+		return decimal.Zero, false
+	}
+	return r.ce[n.index], true
+}
+
+// RiskActive reports whether decisions follow an exponential utility.
+func (r *Result) RiskActive() bool { return r.riskOn }
+
+// Tolerance is the evaluated risk tolerance R (0 when risk-neutral).
+func (r *Result) Tolerance() float64 { return r.tolerance }
+
+// DisplayValue is the value decisions are made on: CE with a risk attitude, EV otherwise.
+func (r *Result) DisplayValue(n *Node) decimal.Decimal {
+	if ce, ok := r.CertaintyEquivalent(n); ok {
+		return ce
+	}
+	return r.ValueOf(n)
+}
+
+// Choice is the recommended branch index at a decision node, or -1.
+func (r *Result) Choice(n *Node) int {
+	if !r.has(n) {
+		return -1
+	}
+	return r.choice[n.index]
+}
+
+// Ties lists the other branch indexes whose value equals the chosen one.
+func (r *Result) Ties(n *Node) []int {
+	if !r.has(n) {
+		return nil
+	}
+	return r.ties[n.index]
+}
+
+// OnPolicy reports whether n is reached when every decision follows its recommendation.
+func (r *Result) OnPolicy(n *Node) bool { return r.has(n) && r.onPolicy[n.index] }
+
+// Broken reports whether n or its subtree could not be evaluated (bad formula, bad probabilities).
+func (r *Result) Broken(n *Node) bool { return r.has(n) && r.broken[n.index] }
+
+// Probability is the evaluated probability of branch i of n ("rest" resolved).
+func (r *Result) Probability(n *Node, i int) decimal.Decimal {
+	if !r.has(n) || i < 0 || i >= len(r.prob[n.index]) {
+		return decimal.Zero
+	}
+	return r.prob[n.index][i]
+}
+
+// Cash is the evaluated cash of branch i of n.
+func (r *Result) Cash(n *Node, i int) decimal.Decimal {
+	if !r.has(n) || i < 0 || i >= len(r.cash[n.index]) {
+		return decimal.Zero
+	}
+	return r.cash[n.index][i]
+}
+
+// Payoff is the evaluated payoff of an end node.
+func (r *Result) Payoff(n *Node) decimal.Decimal {
+	if !r.has(n) {
+		return decimal.Zero
+	}
+	return r.payoff[n.index]
+}
+
+// PathValue is the cash collected from the root to n; at an end it includes the payoff,
+// so it is the path payoff.
+func (r *Result) PathValue(n *Node) decimal.Decimal {
+	if !r.has(n) {
+		return decimal.Zero
+	}
+	return r.pathValue[n.index]
+}
+
+// PathProbability is the product of the chance probabilities from the root to n.
+func (r *Result) PathProbability(n *Node) decimal.Decimal {
+	if !r.has(n) {
+		return decimal.Zero
+	}
+	return r.pathProb[n.index]
+}
+
+// ProblemsAt lists the problems located at node n.
+func (r *Result) ProblemsAt(n *Node) []Problem {
+	var out []Problem
+	for _, p := range r.Problems {
+		if n != nil && p.NodeID == n.ID {
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// Format prints a value the one way every renderer and the CLI print it.
+func (r *Result) Format(d decimal.Decimal) string {
+	return FormatValue(d, r.Project.Decimals, r.Project.Currency)
+}
