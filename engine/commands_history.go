@@ -90,3 +90,7 @@ func (h *History) Dirty() bool { return h.state != h.saved }
 
 // Clear forgets every step, e.g. after opening another file.
 func (h *History) Clear() { *h = History{} }
+
+// Contains reports whether n is one of the nodes this result evaluated, so a
+// front end can tell whether a selected node is still in the tree after an edit.
+func (r *Result) Contains(n *Node) bool { return r.has(n) }
