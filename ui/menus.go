@@ -1,0 +1,188 @@
+package ui
+
+import (
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/driver/desktop"
+
+	"github.com/ramify-app/ramify/assets"
+	"github.com/ramify-app/ramify/engine"
+)
+
+func shortcut(key fyne.KeyName, mod fyne.KeyModifier) fyne.Shortcut {
+	return &desktop.CustomShortcut{KeyName: key, Modifier: mod}
+}
+
+const (
+	ctrl      = fyne.KeyModifierShortcutDefault
+	ctrlShift = fyne.KeyModifierShortcutDefault | fyne.KeyModifierShift
+	alt       = fyne.KeyModifierAlt
+)
+
+// keyBindings are the window's shortcuts; each is also shown in the menus.
+func (e *Editor) keyBindings() []struct {
+	sc fyne.Shortcut
+	f  func()
+} {
+	return []struct {
+		sc fyne.Shortcut
+		f  func()
+	}{
+		{shortcut(fyne.KeyN, ctrl), e.fileNew},
+		{shortcut(fyne.KeyO, ctrl), e.fileOpen},
+		{shortcut(fyne.KeyS, ctrl), func() { e.fileSave(nil) }},
+		{shortcut(fyne.KeyS, ctrlShift), func() { e.fileSaveAs(nil) }},
+		{shortcut(fyne.KeyZ, ctrl), e.undo},
+		{shortcut(fyne.KeyZ, ctrlShift), e.redo},
+		{shortcut(fyne.KeyY, ctrl), e.redo},
+		{shortcut(fyne.KeyC, ctrl), func() { e.copySubtree() }},
+		{shortcut(fyne.KeyX, ctrl), e.cutSubtree},
+		{shortcut(fyne.KeyV, ctrl), e.pasteSubtree},
+		{shortcut(fyne.KeyD, ctrl), e.duplicateSubtree},
+		{shortcut(fyne.KeyB, ctrl), e.addBranch},
+		{shortcut(fyne.KeyB, ctrlShift), e.addSibling},
+		{shortcut(fyne.Key1, ctrl), func() { e.changeKind(engine.Decision) }},
+		{shortcut(fyne.Key2, ctrl), func() { e.changeKind(engine.Chance) }},
+		{shortcut(fyne.Key3, ctrl), func() { e.changeKind(engine.End) }},
+		{shortcut(fyne.KeyUp, alt), func() { e.moveBranch(-1) }},
+		{shortcut(fyne.KeyDown, alt), func() { e.moveBranch(1) }},
+		{shortcut(fyne.KeyLeft, alt), func() { e.setCollapsed(true) }},
+		{shortcut(fyne.KeyRight, alt), func() { e.setCollapsed(false) }},
+		{shortcut(fyne.KeyEqual, ctrl), func() { e.view.ZoomIn() }},
+		{shortcut(fyne.KeyMinus, ctrl), func() { e.view.ZoomOut() }},
+		{shortcut(fyne.Key0, ctrl), func() { e.view.ZoomFit() }},
+		{shortcut(fyne.KeyComma, ctrl), e.projectSettings},
+	}
+}
+
+func (e *Editor) addShortcuts() {
+	c := e.win.Canvas()
+	for _, kb := range e.keyBindings() {
+		f := kb.f
+		c.AddShortcut(kb.sc, func(fyne.Shortcut) { f() })
+	}
+	// Plain keys reach the window when no entry has focus.
+	c.SetOnTypedKey(func(k *fyne.KeyEvent) { e.typedKey(k.Name) })
+	// The standard editing shortcuts are canvas shortcuts, not menu shortcuts:
+	// the window's menu would take them before a focused entry, and Ctrl+C in a
+	// field must copy text. They reach the tree when no entry has focus.
+	c.AddShortcut(&fyne.ShortcutUndo{}, func(fyne.Shortcut) { e.undo() })
+	c.AddShortcut(&fyne.ShortcutRedo{}, func(fyne.Shortcut) { e.redo() })
+	c.AddShortcut(&fyne.ShortcutCopy{}, func(fyne.Shortcut) { e.copySubtree() })
+	c.AddShortcut(&fyne.ShortcutCut{}, func(fyne.Shortcut) { e.cutSubtree() })
+	c.AddShortcut(&fyne.ShortcutPaste{}, func(fyne.Shortcut) { e.pasteSubtree() })
+}
+
+func (e *Editor) typedKey(k fyne.KeyName) {
+	switch k {
+	case fyne.KeyLeft, fyne.KeyRight, fyne.KeyUp, fyne.KeyDown:
+		e.moveSelection(k)
+	case fyne.KeyReturn, fyne.KeyEnter, fyne.KeyF2:
+		e.editInPlace(e.sel)
+	case fyne.KeyDelete:
+		e.deleteSubtree()
+	case fyne.KeyInsert:
+		e.addBranch()
+	case fyne.KeyEscape:
+		e.closeInPlace()
+	}
+}
+
+func (e *Editor) item(label string, sc fyne.Shortcut, f func()) *fyne.MenuItem {
+	it := fyne.NewMenuItem(label, f)
+	it.Shortcut = sc
+	return it
+}
+
+func (e *Editor) buildMenus() {
+	kb := e.keyBindings()
+	sc := func(i int) fyne.Shortcut { return kb[i].sc }
+
+	var demos []*fyne.MenuItem
+	for _, d := range assets.Demos() {
+		d := d
+		demos = append(demos, fyne.NewMenuItem(demoTitle(d.Name), func() { e.fileNewDemo(d) }))
+	}
+	newDemo := fyne.NewMenuItem("New from demo", nil)
+	newDemo.ChildMenu = fyne.NewMenu("", demos...)
+	e.recent = fyne.NewMenuItem("Open recent", nil)
+	e.recent.ChildMenu = fyne.NewMenu("")
+	e.updateRecentMenu()
+
+	file := fyne.NewMenu("File",
+		e.item("New", sc(0), e.fileNew),
+		newDemo,
+		e.item("Open…", sc(1), e.fileOpen),
+		e.recent,
+		fyne.NewMenuItemSeparator(),
+		e.item("Save", sc(2), func() { e.fileSave(nil) }),
+		e.item("Save as…", sc(3), func() { e.fileSaveAs(nil) }),
+		fyne.NewMenuItemSeparator(),
+		e.item("Project settings…", sc(23), e.projectSettings),
+	)
+	e.undoItem = e.item("Undo", nil, e.undo)
+	e.redoItem = e.item("Redo", nil, e.redo)
+	edit := fyne.NewMenu("Edit",
+		e.undoItem, e.redoItem,
+		fyne.NewMenuItemSeparator(),
+		e.item("Cut subtree", nil, e.cutSubtree),
+		e.item("Copy subtree", nil, func() { e.copySubtree() }),
+		e.item("Paste subtree", nil, e.pasteSubtree),
+		e.item("Duplicate subtree", sc(10), e.duplicateSubtree),
+		e.item("Delete subtree", nil, e.deleteSubtree),
+		fyne.NewMenuItemSeparator(),
+		e.item("Edit value (F2)", nil, func() { e.editInPlace(e.sel) }),
+	)
+	tree := fyne.NewMenu("Tree",
+		e.item("Add branch", sc(11), e.addBranch),
+		e.item("Add sibling", sc(12), e.addSibling),
+		fyne.NewMenuItemSeparator(),
+		e.item("Make decision", sc(13), func() { e.changeKind(engine.Decision) }),
+		e.item("Make chance", sc(14), func() { e.changeKind(engine.Chance) }),
+		e.item("Make end", sc(15), func() { e.changeKind(engine.End) }),
+		fyne.NewMenuItemSeparator(),
+		e.item("Move up", sc(16), func() { e.moveBranch(-1) }),
+		e.item("Move down", sc(17), func() { e.moveBranch(1) }),
+		e.item("Collapse", sc(18), func() { e.setCollapsed(true) }),
+		e.item("Expand", sc(19), func() { e.setCollapsed(false) }),
+	)
+	view := fyne.NewMenu("View",
+		e.item("Zoom in", sc(20), func() { e.view.ZoomIn() }),
+		e.item("Zoom out", sc(21), func() { e.view.ZoomOut() }),
+		e.item("Fit to window", sc(22), func() { e.view.ZoomFit() }),
+	)
+	menus := []*fyne.Menu{file, edit, tree, view}
+	for _, me := range menuEntries {
+		me := me
+		var target *fyne.Menu
+		for _, m := range menus {
+			if m.Label == me.Menu {
+				target = m
+			}
+		}
+		if target == nil {
+			target = fyne.NewMenu(me.Menu)
+			menus = append(menus, target)
+		}
+		target.Items = append(target.Items, e.item(me.Label, me.Shortcut, func() { me.Action(e) }))
+		if me.Shortcut != nil {
+			e.win.Canvas().AddShortcut(me.Shortcut, func(fyne.Shortcut) { me.Action(e) })
+		}
+	}
+	e.menu = fyne.NewMainMenu(menus...)
+	e.win.SetMainMenu(e.menu)
+}
+
+func (e *Editor) updateUndoMenu() {
+	if e.undoItem == nil {
+		return
+	}
+	e.undoItem.Label, e.undoItem.Disabled = "Undo", !e.history.CanUndo()
+	if e.history.CanUndo() {
+		e.undoItem.Label = "Undo " + e.history.UndoName()
+	}
+	e.redoItem.Label, e.redoItem.Disabled = "Redo", !e.history.CanRedo()
+	if e.history.CanRedo() {
+		e.redoItem.Label = "Redo " + e.history.RedoName()
+	}
+	e.menu.Refresh()
+}
