@@ -86,4 +86,3 @@ func (pl *problemsList) update() {
 		}
 	}
 }
-

@@ -79,4 +79,6 @@ func (e *Editor) projectSettings() {
 
 type errDecimals string
 
-func (s errDecimals) Error() string { return "decimals: " + strconv.Quote(string(s)) + " is not a whole number" }
+func (s errDecimals) Error() string {
+	return "decimals: " + strconv.Quote(string(s)) + " is not a whole number"
+}

@@ -43,8 +43,8 @@ type Editor struct {
 	inplace   *widget.PopUp
 
 	// writeFile saves bytes to a path; tests inject failures here.
-	writeFile   func(path string, data []byte) error
-	recoveryDir string
+	writeFile    func(path string, data []byte) error
+	recoveryDir  string
 	stopAutosave chan struct{}
 }
 
@@ -94,11 +94,13 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 
 // ---- Host ----
 
-func (e *Editor) Window() fyne.Window             { return e.win }
-func (e *Editor) Project() *engine.Project        { return e.project }
-func (e *Editor) Result() *engine.Result          { return e.result }
-func (e *Editor) SelectedNode() *engine.Node      { return e.selectedNode() }
-func (e *Editor) SelectNode(n *engine.Node)       { e.setSelection(Target{Node: n, Branch: -1, Field: "node"}, true) }
+func (e *Editor) Window() fyne.Window        { return e.win }
+func (e *Editor) Project() *engine.Project   { return e.project }
+func (e *Editor) Result() *engine.Result     { return e.result }
+func (e *Editor) SelectedNode() *engine.Node { return e.selectedNode() }
+func (e *Editor) SelectNode(n *engine.Node) {
+	e.setSelection(Target{Node: n, Branch: -1, Field: "node"}, true)
+}
 func (e *Editor) ShowError(title string, err error) { showError(e.win, title, err) }
 
 // Apply runs an undoable edit, re-evaluates and redraws.
