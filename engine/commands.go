@@ -326,6 +326,10 @@ func (c *ChangeKind) Apply(p *Project) (Command, error) {
 		for i := 0; i < 2; i++ {
 			n.Branches = append(n.Branches, newBranch(p, n, i))
 		}
+		if c.Kind == Chance {
+			n.Branches[0].Probability = "1/2"
+			n.Branches[1].Probability = RestProbability
+		}
 	case c.Kind == Decision:
 		for _, b := range n.Branches {
 			b.Probability = ""

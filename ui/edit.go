@@ -298,27 +298,20 @@ func (e *Editor) editInPlace(t Target) {
 	width := max(size.Width+40, 220)
 	pop.ShowAtPosition(pos)
 	pop.Resize(fyne.NewSize(width, box.MinSize().Height+theme.Padding()*2))
-	e.inplace = pop
+	e.inplace, e.inplaceEntry = pop, entry
 	e.win.Canvas().Focus(entry)
 }
 
 func (e *Editor) closeInPlace() {
 	if e.inplace != nil {
 		e.inplace.Hide()
-		e.inplace = nil
+		e.inplace, e.inplaceEntry = nil, nil
+		e.win.Canvas().Unfocus()
 	}
 }
 
-// InPlaceEntry returns the open in-place entry, or nil (for tests).
-func (e *Editor) InPlaceEntry() *widget.Entry {
-	if e.inplace == nil {
-		return nil
-	}
-	if f, ok := e.win.Canvas().Focused().(*editEntry); ok {
-		return &f.Entry
-	}
-	return nil
-}
+// inPlaceEntry returns the open in-place entry, or nil (for tests).
+func (e *Editor) inPlaceEntry() *editEntry { return e.inplaceEntry }
 
 // editEntry is an Entry that reports Escape.
 type editEntry struct {

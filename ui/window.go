@@ -27,20 +27,21 @@ type Editor struct {
 	dirty   bool   // changed outside the history (restored from recovery)
 	sel     Target
 
-	view      treeView
-	inspector *inspector
-	variables *variablesTable
-	problems  *problemsList
-	status    *widget.Label
-	side      *container.AppTabs
-	analysis  *container.AppTabs
-	panels    []Panel
-	buttons   map[string]*widget.Button
-	menu      *fyne.MainMenu
-	undoItem  *fyne.MenuItem
-	redoItem  *fyne.MenuItem
-	recent    *fyne.MenuItem
-	inplace   *widget.PopUp
+	view         treeView
+	inspector    *inspector
+	variables    *variablesTable
+	problems     *problemsList
+	status       *widget.Label
+	side         *container.AppTabs
+	analysis     *container.AppTabs
+	panels       []Panel
+	buttons      map[string]*widget.Button
+	menu         *fyne.MainMenu
+	undoItem     *fyne.MenuItem
+	redoItem     *fyne.MenuItem
+	recent       *fyne.MenuItem
+	inplace      *widget.PopUp
+	inplaceEntry *editEntry
 
 	// writeFile saves bytes to a path; tests inject failures here.
 	writeFile    func(path string, data []byte) error

@@ -1,0 +1,451 @@
+package ui
+
+import (
+	"errors"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/test"
+	"fyne.io/fyne/v2/widget"
+	"github.com/shopspring/decimal"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ramify-app/ramify/engine"
+)
+
+func newTestEditor(t *testing.T, p *engine.Project) *Editor {
+	t.Helper()
+	a := test.NewTempApp(t)
+	w := test.NewWindow(nil)
+	w.Resize(fyne.NewSize(1200, 800))
+	t.Cleanup(w.Close)
+	e := NewEditor(a, w, p, "", "Untitled")
+	e.recoveryDir = t.TempDir()
+	return e
+}
+
+// typeInto replaces an entry's text by typing, then presses Enter.
+func typeInto(en *commitEntry, text string) {
+	en.SetText("")
+	en.editing = false
+	test.Type(en, text)
+	en.TypedKey(&fyne.KeyEvent{Name: fyne.KeyReturn})
+}
+
+func marshalString(t *testing.T, p *engine.Project) string {
+	t.Helper()
+	data, err := engine.Marshal(p)
+	require.NoError(t, err)
+	return string(data)
+}
+
+// buildLaunchTree builds, by taps and typing, a three-level tree:
+// a decision between "Launch" (a chance node: Success 100 with probability
+// 0.3, Failure -20) and "Hold" (10).
+func buildLaunchTree(t *testing.T, e *Editor) {
+	t.Helper()
+	root := e.Project().Root
+	require.Equal(t, engine.Decision, root.Kind)
+	require.Len(t, root.Branches, 2)
+	in := e.inspector
+
+	typeInto(in.Field(engine.FieldName).entry, "Launch or hold")
+	launch := root.Branches[0].To
+	e.SelectNode(launch)
+	typeInto(in.Field(engine.FieldLabel).entry, "Launch")
+	test.Tap(e.Button("chance"))
+	require.Equal(t, engine.Chance, launch.Kind)
+	require.Len(t, launch.Branches, 2)
+
+	e.SelectNode(launch.Branches[0].To)
+	typeInto(in.Field(engine.FieldLabel).entry, "Success")
+	typeInto(in.Field(engine.FieldProbability).entry, "0.3")
+	typeInto(in.Field(engine.FieldPayoff).entry, "100")
+	test.Tap(e.Button("sibling")) // a third outcome, then removed again
+	require.Len(t, launch.Branches, 3)
+	test.Tap(e.Button("delete"))
+	require.Len(t, launch.Branches, 2)
+
+	e.SelectNode(launch.Branches[1].To)
+	typeInto(in.Field(engine.FieldLabel).entry, "Failure")
+	typeInto(in.Field(engine.FieldPayoff).entry, "-20")
+
+	e.SelectNode(root.Branches[1].To)
+	typeInto(in.Field(engine.FieldLabel).entry, "Hold")
+	typeInto(in.Field(engine.FieldPayoff).entry, "10")
+}
+
+func TestBuildTreeByTapsAndTyping(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+
+	// Independent check: max(0.3×100 + 0.7×(−20), 10) = max(16, 10) = 16 (closed form).
+	want := decimal.NewFromInt(16)
+	r := engine.Evaluate(e.Project().Clone())
+	require.True(t, r.Valid(), "%v", r.Problems)
+	assert.True(t, want.Equal(r.Value()), "engine value %s", r.Value())
+	assert.Contains(t, e.StatusText(), r.Format(want))
+	assert.Contains(t, e.StatusText(), "Expected value")
+	assert.Contains(t, e.StatusText(), "valid")
+	assert.Equal(t, "Launch", e.Project().Root.Branches[0].Label)
+	assert.Equal(t, "Launch or hold", e.Project().Root.Name)
+	assert.True(t, e.Dirty())
+	assert.Contains(t, e.win.Title(), "*")
+}
+
+func TestUndoRedoThroughToolbar(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	start := marshalString(t, e.Project())
+	buildLaunchTree(t, e)
+	built := marshalString(t, e.Project())
+	status := e.StatusText()
+
+	steps := 0
+	for e.history.CanUndo() {
+		test.Tap(e.Button("undo"))
+		steps++
+	}
+	assert.Equal(t, start, marshalString(t, e.Project()))
+	assert.False(t, e.Dirty())
+	assert.Equal(t, e.Project().Root, e.Selection().Node, "undo back to the start selects the root again")
+	for i := 0; i < steps; i++ {
+		test.Tap(e.Button("redo"))
+	}
+	assert.Equal(t, built, marshalString(t, e.Project()))
+	assert.Equal(t, status, e.StatusText())
+
+	// Undo restores the selection from before the edit.
+	hold := e.Project().Root.Branches[1].To
+	e.SelectNode(hold)
+	test.Tap(e.Button("delete"))
+	assert.Equal(t, e.Project().Root, e.selectedNode())
+	test.Tap(e.Button("undo"))
+	assert.Equal(t, hold, e.selectedNode())
+	// Ctrl+Y and Ctrl+Shift+Z redo, Ctrl+Z undoes.
+	e.win.Canvas().(fyne.Canvas).Focus(nil)
+	sc := e.keyBindings()
+	sc[6].f() // Ctrl+Y
+	assert.Len(t, e.Project().Root.Branches, 1)
+	sc[4].f() // Ctrl+Z
+	assert.Len(t, e.Project().Root.Branches, 2)
+	sc[5].f() // Ctrl+Shift+Z
+	assert.Len(t, e.Project().Root.Branches, 1)
+}
+
+func TestInvalidEntryKeepsOldValue(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	before := marshalString(t, e.Project())
+	status := e.StatusText()
+	hold := e.Project().Root.Branches[1].To
+	e.SelectNode(hold)
+	f := e.inspector.Field(engine.FieldPayoff)
+	typeInto(f.entry, "10 * (3")
+
+	_, parseErr := engine.ParseFormula("10 * (3")
+	require.Error(t, parseErr)
+	assert.Contains(t, f.Error(), parseErr.Error(), "the parse error is shown next to the field")
+	assert.Equal(t, "10", hold.Payoff, "the old value is kept")
+	assert.Equal(t, before, marshalString(t, e.Project()))
+	assert.Equal(t, status, e.StatusText())
+	assert.Equal(t, "10 * (3", f.entry.Text, "the typed text stays for correction")
+
+	typeInto(f.entry, "12")
+	assert.Empty(t, f.Error())
+	assert.Equal(t, "12", hold.Payoff)
+}
+
+func TestInPlaceEditing(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	launch := e.Project().Root.Branches[0].To
+	target := Target{Node: launch, Branch: 0, Field: engine.FieldProbability}
+	e.setSelection(target, false)
+	e.typedKey(fyne.KeyF2)
+	en := e.inPlaceEntry()
+	require.NotNil(t, en, "F2 opens an entry")
+	assert.Equal(t, "0.3", en.Text)
+
+	en.SetText("0.4")
+	en.TypedKey(&fyne.KeyEvent{Name: fyne.KeyEscape})
+	assert.Nil(t, e.inPlaceEntry(), "Escape closes")
+	assert.Equal(t, "0.3", launch.Branches[0].Probability, "Escape cancels")
+
+	e.typedKey(fyne.KeyReturn)
+	en = e.inPlaceEntry()
+	require.NotNil(t, en, "Enter opens an entry")
+	en.SetText("1.5 +")
+	en.TypedKey(&fyne.KeyEvent{Name: fyne.KeyReturn})
+	assert.NotNil(t, e.inPlaceEntry(), "an invalid formula keeps the entry open")
+	assert.Equal(t, "0.3", launch.Branches[0].Probability)
+	en.SetText("0.4")
+	en.TypedKey(&fyne.KeyEvent{Name: fyne.KeyReturn})
+	assert.Nil(t, e.inPlaceEntry())
+	assert.Equal(t, "0.4", launch.Branches[0].Probability)
+	// 0.4×100 + 0.6×(−20) = 28 (closed form)
+	assert.Contains(t, e.StatusText(), e.Result().Format(decimal.NewFromInt(28)))
+}
+
+func TestKeyboardNavigationAndStructure(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	root := e.Project().Root
+	launch := root.Branches[0].To
+	e.SelectNode(root)
+	e.typedKey(fyne.KeyRight) // to the chosen branch: Launch (16 > 10)
+	assert.Equal(t, launch, e.selectedNode())
+	e.typedKey(fyne.KeyDown)
+	assert.Equal(t, root.Branches[1].To, e.selectedNode())
+	e.typedKey(fyne.KeyUp)
+	e.typedKey(fyne.KeyRight)
+	assert.Equal(t, launch.Branches[0].To, e.selectedNode())
+	e.typedKey(fyne.KeyLeft)
+	assert.Equal(t, launch, e.selectedNode())
+
+	kb := e.keyBindings()
+	kb[17].f() // Alt+Down: move Launch below Hold
+	assert.Equal(t, "Hold", root.Branches[0].Label)
+	kb[16].f() // Alt+Up
+	assert.Equal(t, "Launch", root.Branches[0].Label)
+	kb[18].f() // collapse
+	assert.True(t, launch.Collapsed)
+	kb[19].f()
+	assert.False(t, launch.Collapsed)
+	e.typedKey(fyne.KeyInsert) // add branch to the chance node
+	assert.Len(t, launch.Branches, 3)
+	assert.Equal(t, "0", launch.Branches[2].Probability, "a new outcome starts at 0 beside a rest branch")
+	e.typedKey(fyne.KeyDelete)
+	assert.Len(t, launch.Branches, 2)
+	kb[15].f() // Ctrl+3: make end
+	assert.Equal(t, engine.End, e.selectedNode().Kind)
+	kb[14].f() // Ctrl+2: make chance again (two fresh outcomes)
+	assert.Equal(t, engine.Chance, e.selectedNode().Kind)
+}
+
+func TestClipboardBetweenWindows(t *testing.T) {
+	a := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, a)
+	a.Project().Variables = append(a.Project().Variables, &engine.Variable{Name: "gain", Value: "100"})
+	launch := a.Project().Root.Branches[0].To
+	launch.Branches[0].To.Payoff = "gain"
+	a.refresh()
+	a.SelectNode(launch)
+	require.True(t, a.copySubtree())
+
+	// A second window of the same app reads the same clipboard.
+	w2 := test.NewWindow(nil)
+	defer w2.Close()
+	b := NewEditor(a.app, w2, EmptyProject(), "", "Second")
+	b.recoveryDir = t.TempDir()
+	b.SelectNode(b.Project().Root)
+	b.pasteSubtree()
+	root := b.Project().Root
+	require.Len(t, root.Branches, 3)
+	pasted := root.Branches[2].To
+	assert.Equal(t, engine.Chance, pasted.Kind)
+	assert.NotNil(t, b.Project().Variable("gain"), "variables used by the subtree come along")
+	assert.True(t, a.Result().ValueOf(launch).Equal(b.Result().ValueOf(pasted)))
+
+	// Paste onto an end node replaces it; duplicate adds a copy; cut removes.
+	b.SelectNode(root.Branches[0].To)
+	b.pasteSubtree()
+	assert.Equal(t, engine.Chance, root.Branches[0].To.Kind)
+	b.SelectNode(pasted)
+	b.duplicateSubtree()
+	require.Len(t, root.Branches, 4)
+	assert.Equal(t, pasted.Name, root.Branches[3].To.Name)
+	b.cutSubtree()
+	assert.Len(t, root.Branches, 3)
+	assert.NotEmpty(t, a.app.Clipboard().Content())
+}
+
+func TestVariablesTable(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	test.Tap(e.Button("add variable"))
+	require.Len(t, e.Project().Variables, 1)
+	name := e.Project().Variables[0].Name
+	typeInto(e.variables.entries[0][engine.VarValue], "150")
+	e.SelectNode(e.Project().Root.Branches[0].To.Branches[0].To)
+	typeInto(e.inspector.Field(engine.FieldPayoff).entry, name+" - 50")
+	// 0.3×100 − 0.7×20 = 16 again (closed form)
+	assert.Contains(t, e.StatusText(), e.Result().Format(decimal.NewFromInt(16)))
+
+	typeInto(e.variables.entries[0]["name"], "gain")
+	assert.Equal(t, "gain - 50", e.Project().Root.Branches[0].To.Branches[0].To.Payoff, "rename updates every formula")
+
+	test.Tap(e.variables.rows.Objects[1].(*fyne.Container).Objects[5].(interface{ Tapped(*fyne.PointEvent) }).(fyne.Tappable))
+	assert.Len(t, e.Project().Variables, 1, "a variable in use is not removed")
+	assert.Contains(t, e.variables.Error(), `node "`)
+	assert.Contains(t, e.variables.Error(), "payoff")
+
+	typeInto(e.variables.entries[0][engine.VarValue], "oops(")
+	assert.Equal(t, "150", e.Project().Variables[0].Value)
+	assert.NotEmpty(t, e.variables.Error())
+}
+
+func TestProblemsListSelectsPlace(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	launch := e.Project().Root.Branches[0].To
+	require.NoError(t, e.Apply(&engine.SetBranchField{Node: launch, Branch: 1, Field: engine.FieldProbability, Value: "0.5"}))
+	require.False(t, e.Result().Valid())
+	assert.Contains(t, e.StatusText(), "1 problem")
+	e.SelectNode(e.Project().Root)
+	e.problems.list.Select(0)
+	assert.Equal(t, launch, e.Selection().Node)
+}
+
+func TestSaveLoadRoundTrip(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	path := filepath.Join(t.TempDir(), "launch.ramify.json")
+	require.NoError(t, e.SaveTo(path))
+	assert.False(t, e.Dirty())
+	assert.NotContains(t, e.win.Title(), "*")
+
+	data, err := os.ReadFile(path)
+	require.NoError(t, err)
+	assert.Equal(t, marshalString(t, e.Project()), string(data))
+
+	e2 := newTestEditor(t, EmptyProject())
+	require.NoError(t, e2.OpenPath(path))
+	assert.Equal(t, string(data), marshalString(t, e2.Project()))
+	assert.Equal(t, e.StatusText(), e2.StatusText())
+	assert.Equal(t, path, e2.Recent()[0])
+
+	// A second save keeps the first as .bak.
+	require.NoError(t, e.Apply(&engine.SetNodeField{Node: e.Project().Root, Field: engine.FieldName, Value: "Renamed"}))
+	require.NoError(t, e.SaveTo(path))
+	bak, err := os.ReadFile(path + ".bak")
+	require.NoError(t, err)
+	assert.Equal(t, string(data), string(bak))
+}
+
+func TestOpenRefusesBrokenAndNewerFiles(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	before := marshalString(t, e.Project())
+	dir := t.TempDir()
+	files := map[string]string{
+		"newer.json":  `{"format": "ramify", "version": 99, "root": {"kind": "end"}}`,
+		"broken.json": `{"format": "ramify", "version": 1, "root": {"kind": "end"`,
+	}
+	for name, text := range files {
+		path := filepath.Join(dir, name)
+		require.NoError(t, os.WriteFile(path, []byte(text), 0o644))
+		err := e.OpenPath(path)
+		require.Error(t, err, name)
+		_, loadErr := engine.Load(path)
+		assert.Equal(t, loadErr.Error(), err.Error(), "the loader's message is shown")
+		assert.Equal(t, before, marshalString(t, e.Project()), "the open project is kept")
+		got, _ := os.ReadFile(path)
+		assert.Equal(t, text, string(got), "the refused file is not touched")
+	}
+}
+
+// Fault test: a failing save reports the failure, keeps the project dirty and
+// leaves the file on disk byte-identical. Tests run as root, where a read-only
+// folder does not stop writes, so the failures are a path below a plain file
+// and an injected writer error half-way through the data.
+func TestFailedSaveKeepsOriginal(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	dir := t.TempDir()
+	path := filepath.Join(dir, "launch.ramify.json")
+	require.NoError(t, e.SaveTo(path))
+	original, err := os.ReadFile(path)
+	require.NoError(t, err)
+	require.NoError(t, e.Apply(&engine.SetNodeField{Node: e.Project().Root, Field: engine.FieldName, Value: "Changed"}))
+
+	err = e.SaveTo(filepath.Join(path, "below-a-file.ramify.json"))
+	require.Error(t, err)
+	assert.True(t, e.Dirty())
+	assert.Equal(t, path, e.Path(), "a failed save does not move the project to the new path")
+
+	e.writeFile = func(p string, data []byte) error {
+		return engine.WriteAtomic(p, func(w io.Writer) error {
+			if _, err := w.Write(data[:len(data)/2]); err != nil {
+				return err
+			}
+			return errors.New("no space left on device")
+		})
+	}
+	err = e.SaveTo(path)
+	require.Error(t, err)
+	assert.Contains(t, err.Error(), "no space left on device")
+	assert.True(t, e.Dirty())
+	got, err := os.ReadFile(path)
+	require.NoError(t, err)
+	assert.Equal(t, original, got, "the original file is byte-identical")
+	entries, err := os.ReadDir(dir)
+	require.NoError(t, err)
+	for _, en := range entries {
+		assert.False(t, strings.Contains(en.Name(), ".tmp"), "temporary file left behind: %s", en.Name())
+	}
+}
+
+func TestAutosaveAndRecovery(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	require.NoError(t, e.Autosave())
+	_, err := os.Stat(e.RecoveryPath())
+	assert.True(t, os.IsNotExist(err), "nothing to recover while clean")
+
+	buildLaunchTree(t, e)
+	require.NoError(t, e.Autosave())
+	data, err := os.ReadFile(e.RecoveryPath())
+	require.NoError(t, err)
+	assert.Equal(t, marshalString(t, e.Project()), string(data))
+
+	// The next start finds it and restores it as unsaved work.
+	e2 := newTestEditor(t, EmptyProject())
+	e2.recoveryDir = e.recoveryDir
+	p, err := engine.Load(e2.RecoveryPath())
+	require.NoError(t, err)
+	e2.RestoreRecovery(p, "")
+	assert.True(t, e2.Dirty())
+	assert.Equal(t, e.StatusText(), e2.StatusText())
+
+	// Saving removes the recovery file.
+	require.NoError(t, e.SaveTo(filepath.Join(t.TempDir(), "saved.ramify.json")))
+	_, err = os.Stat(e.RecoveryPath())
+	assert.True(t, os.IsNotExist(err))
+}
+
+type countingPanel struct{ updates int }
+
+func (c *countingPanel) Title() string              { return "Counting" }
+func (c *countingPanel) Content() fyne.CanvasObject { return widget.NewLabel("counting") }
+func (c *countingPanel) Update(*engine.Result)      { c.updates++ }
+
+func TestPanelsAndMenusFromRegistry(t *testing.T) {
+	cp := &countingPanel{}
+	saved, savedMenus := panels, menuEntries
+	t.Cleanup(func() { panels, menuEntries = saved, savedMenus })
+	RegisterPanel(1000, func(Host) Panel { return cp })
+	ran := false
+	RegisterMenu(MenuEntry{Menu: "Analyse", Label: "Count", Action: func(h Host) { ran = h.Project() != nil }})
+	e := newTestEditor(t, EmptyProject())
+	before := cp.updates
+	test.Tap(e.Button("branch"))
+	assert.Greater(t, cp.updates, before, "panels are updated after each change")
+
+	var found *fyne.MenuItem
+	for _, m := range e.menu.Items {
+		if m.Label == "Analyse" {
+			for _, it := range m.Items {
+				if it.Label == "Count" {
+					found = it
+				}
+			}
+		}
+	}
+	require.NotNil(t, found)
+	found.Action()
+	assert.True(t, ran)
+}
