@@ -189,3 +189,57 @@ func (o Objective) Better(a, b float64) bool {
 	}
 	return a > b
 }
+
+// Clone returns a deep copy of the project; compiled formulas are not shared,
+// so the copy can be evaluated on another goroutine.
+func (p *Project) Clone() *Project {
+	c := *p
+	c.Variables = make([]*Variable, len(p.Variables))
+	for i, v := range p.Variables {
+		c.Variables[i] = v.Clone()
+	}
+	c.Root = p.Root.Clone()
+	return &c
+}
+
+// Clone returns a deep copy of the variable.
+func (v *Variable) Clone() *Variable {
+	c := *v
+	if v.Dist != nil {
+		d := *v.Dist
+		d.Values = append([]string(nil), v.Dist.Values...)
+		d.Probs = append([]string(nil), v.Dist.Probs...)
+		c.Dist = &d
+	}
+	return &c
+}
+
+// Clone returns a deep copy of the subtree at n, ids included, without recursion.
+func (n *Node) Clone() *Node {
+	if n == nil {
+		return nil
+	}
+	copyOne := func(m *Node) *Node {
+		c := &Node{ID: m.ID, Kind: m.Kind, Name: m.Name, Note: m.Note, Payoff: m.Payoff, Collapsed: m.Collapsed}
+		if len(m.Branches) > 0 {
+			c.Branches = make([]*Branch, len(m.Branches))
+		}
+		return c
+	}
+	root := copyOne(n)
+	type pair struct{ from, to *Node }
+	stack := []pair{{n, root}}
+	for len(stack) > 0 {
+		pr := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		for i, b := range pr.from.Branches {
+			nb := &Branch{Label: b.Label, Probability: b.Probability, Cash: b.Cash}
+			if b.To != nil {
+				nb.To = copyOne(b.To)
+				stack = append(stack, pair{b.To, nb.To})
+			}
+			pr.to.Branches[i] = nb
+		}
+	}
+	return root
+}

@@ -10,21 +10,23 @@ type Result struct {
 	Problems []Problem
 	Nodes    []*Node // preorder; Nodes[i].index == i
 
-	Vars map[string]decimal.Decimal // evaluated variable values
+	Vars MapEnv // evaluated variable values
 
-	value     []decimal.Decimal // expected value of the subtree at each node
-	ce        []decimal.Decimal // certainty equivalent (risk attitude active only)
-	choice    []int             // chosen branch at decisions, -1 elsewhere
-	ties      [][]int           // other branches tied with the choice
-	onPolicy  []bool            // reached when following the recommended choices
-	pathValue []decimal.Decimal // cash from the root to the node (plus payoff at ends)
-	pathProb  []decimal.Decimal // product of chance probabilities from the root
-	payoff    []decimal.Decimal // end payoff as evaluated
-	prob      [][]decimal.Decimal
-	cash      [][]decimal.Decimal
-	broken    []bool // node's own fields or subtree could not be evaluated
-	riskOn    bool
-	tolerance float64
+	value        []decimal.Decimal // expected value of the subtree at each node
+	ce           []decimal.Decimal // certainty equivalent (risk attitude active only)
+	choice       []int             // chosen branch at decisions, -1 elsewhere
+	ties         [][]int           // other branches tied with the choice
+	onPolicy     []bool            // reached when following the recommended choices
+	pathValue    []decimal.Decimal // cash from the root to the node (plus payoff at ends)
+	pathProb     []decimal.Decimal // product of chance probabilities from the root
+	payoff       []decimal.Decimal // end payoff as evaluated
+	prob         [][]decimal.Decimal
+	cash         [][]decimal.Decimal
+	broken       []bool  // node's own fields or subtree could not be evaluated
+	parent       []int32 // parent index, -1 at the root
+	parentBranch []int32
+	riskOn       bool
+	tolerance    float64
 }
 
 // Problem is one validation or evaluation problem, with its place.
@@ -155,3 +157,6 @@ func (r *Result) ProblemsAt(n *Node) []Problem {
 func (r *Result) Format(d decimal.Decimal) string {
 	return FormatValue(d, r.Project.Decimals, r.Project.Currency)
 }
+
+// Decimal is the exact decimal type every value uses.
+type Decimal = decimal.Decimal

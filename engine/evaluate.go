@@ -1,0 +1,658 @@
+package engine
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/shopspring/decimal"
+)
+
+var one = decimal.NewFromInt(1)
+
+// Evaluate validates the project and rolls the tree back exactly. It never fails:
+// every problem is listed in Result.Problems with its place, and the parts of the
+// tree that can be computed still are. Evaluate keeps compiled formulas and an
+// index inside the nodes, so one project must not be evaluated from two goroutines
+// at once (analyses work on clones).
+func Evaluate(p *Project) *Result {
+	r := &Result{Project: p}
+	r.Vars = evaluateVariables(p, &r.Problems)
+	if p.Root == nil {
+		r.addProblem("", -1, "root", "the project has no root node")
+		return r
+	}
+	r.index()
+	r.evaluateFields()
+	r.rollBack()
+	r.evaluateRisk()
+	r.markPolicy()
+	r.forward()
+	return r
+}
+
+func (r *Result) addProblem(nodeID string, branch int, field, msg string) {
+	r.Problems = append(r.Problems, Problem{NodeID: nodeID, Branch: branch, Field: field, Msg: msg})
+}
+
+// Place names a node (and branch) the way every message does: node "n7" branch "Long delay".
+func Place(n *Node, branch int) string {
+	s := fmt.Sprintf("node %q", n.ID)
+	if branch >= 0 && branch < len(n.Branches) {
+		label := n.Branches[branch].Label
+		if label == "" {
+			label = fmt.Sprintf("#%d", branch+1)
+		}
+		s += fmt.Sprintf(" branch %q", label)
+	}
+	return s
+}
+
+func (r *Result) nodeProblem(n *Node, branch int, field, msg string) {
+	place := Place(n, branch)
+	if field != "" {
+		place += " " + field
+	}
+	r.addProblem(n.ID, branch, field, place+": "+msg)
+}
+
+// evaluateVariables computes every variable in dependency order; cycles and
+// unknown names are problems, and the variables involved are left out.
+func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
+	env := MapEnv{}
+	formulas := map[string]*Formula{}
+	seen := map[string]bool{}
+	for _, v := range p.Variables {
+		place := fmt.Sprintf("variable %q", v.Name)
+		if !ValidName(v.Name) {
+			*problems = append(*problems, Problem{Branch: -1, Field: "name", Msg: place + ": not a valid name (letters, digits and _, not starting with a digit)"})
+			continue
+		}
+		if seen[v.Name] {
+			*problems = append(*problems, Problem{Branch: -1, Field: "name", Msg: place + ": defined twice"})
+			continue
+		}
+		seen[v.Name] = true
+		f, err := ParseFormula(v.Value)
+		if err != nil {
+			*problems = append(*problems, Problem{Branch: -1, Field: "variable " + v.Name, Msg: place + " value: " + err.Error()})
+			continue
+		}
+		formulas[v.Name] = f
+	}
+	// Depth-first in declaration order, with an explicit stack, so cycles can be named.
+	const (
+		unvisited = iota
+		active
+		done
+	)
+	state := map[string]int{}
+	for _, v := range p.Variables {
+		if formulas[v.Name] == nil || state[v.Name] != unvisited {
+			continue
+		}
+		type frame struct {
+			name string
+			next int
+		}
+		stack := []frame{{v.Name, 0}}
+		state[v.Name] = active
+		for len(stack) > 0 {
+			top := &stack[len(stack)-1]
+			f := formulas[top.name]
+			if f == nil { // dropped as part of a cycle
+				stack = stack[:len(stack)-1]
+				continue
+			}
+			if top.next < len(f.names) {
+				dep := f.names[top.next]
+				top.next++
+				if formulas[dep] == nil {
+					continue // reported when the formula is evaluated
+				}
+				switch state[dep] {
+				case unvisited:
+					state[dep] = active
+					stack = append(stack, frame{dep, 0})
+				case active:
+					var cycle []string
+					for i := range stack {
+						if stack[i].name == dep {
+							for _, fr := range stack[i:] {
+								cycle = append(cycle, fr.name)
+							}
+						}
+					}
+					cycle = append(cycle, dep)
+					*problems = append(*problems, Problem{Branch: -1, Field: "variable " + dep,
+						Msg: fmt.Sprintf("variables refer to each other in a cycle: %s", strings.Join(cycle, " → "))})
+					for _, c := range cycle {
+						delete(formulas, c)
+						state[c] = done
+					}
+				}
+				continue
+			}
+			name := top.name
+			stack = stack[:len(stack)-1]
+			state[name] = done
+			if f == nil || formulas[name] == nil {
+				continue
+			}
+			val, err := f.Eval(env)
+			if err != nil {
+				*problems = append(*problems, Problem{Branch: -1, Field: "variable " + name,
+					Msg: fmt.Sprintf("variable %q value: %s", name, err)})
+				continue
+			}
+			env[name] = val
+		}
+	}
+	return env
+}
+
+// index lists the nodes in preorder and sizes the result slices. A node that
+// appears twice (the tree is not a tree) is reported and not descended again.
+func (r *Result) index() {
+	seen := map[*Node]bool{}
+	ids := map[string]bool{}
+	Walk(r.Project.Root, func(n *Node, _ int) bool {
+		if seen[n] {
+			r.nodeProblem(n, -1, "", "this node appears in two places; a tree node has one parent")
+			return false
+		}
+		seen[n] = true
+		if ids[n.ID] {
+			r.nodeProblem(n, -1, "id", "the id is used by another node")
+		}
+		ids[n.ID] = true
+		n.index = len(r.Nodes)
+		r.Nodes = append(r.Nodes, n)
+		return true
+	})
+	// A node appearing twice breaks the walk's assumption; cut the second visit off.
+	count := len(r.Nodes)
+	r.value = make([]decimal.Decimal, count)
+	r.choice = make([]int, count)
+	r.ties = make([][]int, count)
+	r.onPolicy = make([]bool, count)
+	r.payoff = make([]decimal.Decimal, count)
+	r.prob = make([][]decimal.Decimal, count)
+	r.cash = make([][]decimal.Decimal, count)
+	r.broken = make([]bool, count)
+	r.parent = make([]int32, count)
+	r.parentBranch = make([]int32, count)
+	r.parent[0] = -1
+	for i, n := range r.Nodes {
+		r.choice[i] = -1
+		for bi, b := range n.Branches {
+			if c := b.To; c != nil && c.index < count && r.Nodes[c.index] == c && c.index > i {
+				r.parent[c.index], r.parentBranch[c.index] = int32(i), int32(bi)
+			}
+		}
+	}
+}
+
+// evalField evaluates an optional formula field; empty means zero.
+func (r *Result) evalField(cache *cachedFormula, src string, n *Node, branch int, field string) (decimal.Decimal, bool) {
+	if strings.TrimSpace(src) == "" {
+		return decimal.Zero, true
+	}
+	f, err := cache.get(src)
+	if err == nil {
+		var v decimal.Decimal
+		if v, err = f.Eval(r.Vars); err == nil {
+			return v, true
+		}
+	}
+	r.nodeProblem(n, branch, field, err.Error())
+	return decimal.Zero, false
+}
+
+func (r *Result) evaluateFields() {
+	for i, n := range r.Nodes {
+		switch n.Kind {
+		case End:
+			if len(n.Branches) > 0 {
+				r.nodeProblem(n, -1, "", "an end node cannot have branches")
+				r.broken[i] = true
+			}
+			v, ok := r.evalField(&n.payoffF, n.Payoff, n, -1, "payoff")
+			r.payoff[i] = v
+			r.broken[i] = r.broken[i] || !ok
+			continue
+		case Decision, Chance:
+			if len(n.Branches) == 0 {
+				r.nodeProblem(n, -1, "", fmt.Sprintf("a %s node needs at least one branch", n.Kind))
+				r.broken[i] = true
+			}
+			if strings.TrimSpace(n.Payoff) != "" {
+				r.nodeProblem(n, -1, "payoff", "only end nodes have a payoff; put the value on a branch's cash")
+				r.broken[i] = true
+			}
+		default:
+			r.nodeProblem(n, -1, "kind", fmt.Sprintf("unknown kind %q (use decision, chance or end)", n.Kind))
+			r.broken[i] = true
+			continue
+		}
+		r.cash[i] = make([]decimal.Decimal, len(n.Branches))
+		r.prob[i] = make([]decimal.Decimal, len(n.Branches))
+		for bi, b := range n.Branches {
+			if b.To == nil {
+				r.nodeProblem(n, bi, "", "the branch leads nowhere")
+				r.broken[i] = true
+			}
+			v, ok := r.evalField(&b.cashF, b.Cash, n, bi, "cash")
+			r.cash[i][bi] = v
+			r.broken[i] = r.broken[i] || !ok
+		}
+		if n.Kind == Decision {
+			for bi, b := range n.Branches {
+				if strings.TrimSpace(b.Probability) != "" {
+					r.nodeProblem(n, bi, "probability", "a decision branch has no probability; make the node a chance node or clear the field")
+					r.broken[i] = true
+				}
+			}
+			continue
+		}
+		if !r.evaluateProbabilities(n) {
+			r.broken[i] = true
+		}
+	}
+}
+
+// evaluateProbabilities checks a chance node's distribution: each in [0, 1],
+// at most one "rest", and a total of exactly 1.
+func (r *Result) evaluateProbabilities(n *Node) bool {
+	i := n.index
+	ok := true
+	rest := -1
+	sum := decimal.Zero
+	for bi, b := range n.Branches {
+		src := strings.TrimSpace(b.Probability)
+		switch {
+		case src == RestProbability:
+			if rest >= 0 {
+				r.nodeProblem(n, bi, "probability", `only one branch of a node may be "rest"`)
+				ok = false
+			}
+			rest = bi
+			continue
+		case src == "":
+			r.nodeProblem(n, bi, "probability", "missing (give a number, a formula or rest)")
+			ok = false
+			continue
+		}
+		v, good := r.evalField(&b.probF, b.Probability, n, bi, "probability")
+		if !good {
+			ok = false
+			continue
+		}
+		if v.IsNegative() || v.GreaterThan(one) {
+			r.nodeProblem(n, bi, "probability", fmt.Sprintf("%s is outside 0 to 1", v.String()))
+			ok = false
+		}
+		r.prob[i][bi] = v
+		sum = sum.Add(v)
+	}
+	if !ok {
+		return false
+	}
+	if rest >= 0 {
+		left := one.Sub(sum)
+		if left.IsNegative() {
+			r.nodeProblem(n, rest, "probability", fmt.Sprintf("the other branches already add up to %s, so rest would be negative", sum.String()))
+			return false
+		}
+		r.prob[i][rest] = left
+		return true
+	}
+	if !sum.Equal(one) {
+		r.nodeProblem(n, -1, "probability", fmt.Sprintf("the branch probabilities add up to %s, not 1 (give one branch the probability rest to take up the difference)", sum.String()))
+		return false
+	}
+	return true
+}
+
+// rollBack computes values from the ends to the root: reverse preorder visits
+// every child before its parent, so no recursion is needed at any depth.
+func (r *Result) rollBack() {
+	maximize := r.Project.Objective != Minimize
+	for i := len(r.Nodes) - 1; i >= 0; i-- {
+		n := r.Nodes[i]
+		if n.Kind == End {
+			r.value[i] = r.payoff[i]
+			continue
+		}
+		for _, b := range n.Branches {
+			if b.To != nil && (!r.owns(b.To, i) || r.broken[b.To.index]) {
+				r.broken[i] = true
+			}
+		}
+		if r.broken[i] {
+			continue
+		}
+		switch n.Kind {
+		case Chance:
+			sum := decimal.Zero
+			for bi, b := range n.Branches {
+				p := r.prob[i][bi]
+				if p.IsZero() {
+					continue
+				}
+				v := r.branchValue(i, bi, b)
+				if !p.Equal(one) {
+					v = p.Mul(v)
+				}
+				sum = sum.Add(v)
+			}
+			r.value[i] = sum
+		case Decision:
+			best := -1
+			var bestV decimal.Decimal
+			var ties []int
+			for bi, b := range n.Branches {
+				v := r.branchValue(i, bi, b)
+				switch {
+				case best < 0:
+					best, bestV = bi, v
+				case v.Equal(bestV):
+					ties = append(ties, bi)
+				case (maximize && v.GreaterThan(bestV)) || (!maximize && v.LessThan(bestV)):
+					best, bestV, ties = bi, v, nil
+				}
+			}
+			r.choice[i], r.value[i], r.ties[i] = best, bestV, ties
+		}
+	}
+}
+
+// owns reports whether c is the child recorded for parent index i (guards shared nodes).
+func (r *Result) owns(c *Node, i int) bool {
+	return c.index < len(r.Nodes) && r.Nodes[c.index] == c && c.index > i && int(r.parent[c.index]) == i
+}
+
+func (r *Result) branchValue(i, bi int, b *Branch) decimal.Decimal {
+	v := r.value[b.To.index]
+	if c := r.cash[i][bi]; !c.IsZero() {
+		v = v.Add(c)
+	}
+	return v
+}
+
+// evaluateRisk rolls back certainty equivalents under exponential utility and lets
+// decisions follow them. For a cost objective the utility is applied to the
+// negated cost and the CE is reported back as a cost.
+func (r *Result) evaluateRisk() {
+	risk := r.Project.Risk
+	if risk.Mode == RiskNeutral {
+		return
+	}
+	if risk.Mode != RiskExponential {
+		r.addProblem("", -1, "risk", fmt.Sprintf("risk attitude %q is unknown (use exponential, or leave it empty for risk-neutral)", risk.Mode))
+		return
+	}
+	R, err := ParseTolerance(risk.Tolerance, r.Vars)
+	if err != nil {
+		r.addProblem("", -1, "risk tolerance", "risk tolerance: "+err.Error())
+		return
+	}
+	r.riskOn, r.tolerance = true, R
+	sign := 1.0
+	if r.Project.Objective == Minimize {
+		sign = -1
+	}
+	ce := make([]float64, len(r.Nodes)) // in benefit terms (sign applied)
+	r.ce = make([]decimal.Decimal, len(r.Nodes))
+	terms := make([]float64, 0, 8)
+	for i := len(r.Nodes) - 1; i >= 0; i-- {
+		n := r.Nodes[i]
+		if r.broken[i] {
+			continue
+		}
+		branchCE := func(bi int, b *Branch) float64 {
+			return ce[b.To.index] + sign*r.cash[i][bi].InexactFloat64()
+		}
+		switch n.Kind {
+		case End:
+			ce[i] = sign * r.payoff[i].InexactFloat64()
+		case Chance:
+			terms = terms[:0]
+			ps := make([]float64, 0, len(n.Branches))
+			for bi, b := range n.Branches {
+				p := r.prob[i][bi].InexactFloat64()
+				if p == 0 {
+					continue
+				}
+				terms = append(terms, branchCE(bi, b))
+				ps = append(ps, p)
+			}
+			ce[i] = CertaintyEquivalent(ps, terms, R)
+		case Decision:
+			best, ties := -1, []int(nil)
+			for bi, b := range n.Branches {
+				v := branchCE(bi, b)
+				switch {
+				case best < 0 || v > ce[i]:
+					best, ce[i], ties = bi, v, nil
+				case v == ce[i]:
+					ties = append(ties, bi)
+				}
+			}
+			r.choice[i], r.ties[i] = best, ties
+			// The EV shown at a decision is that of the branch chosen under the attitude.
+			r.value[i] = r.branchValue(i, best, n.Branches[best])
+		}
+		r.ce[i] = decimal.NewFromFloat(sign * ce[i])
+	}
+	// Values of ancestors must follow the new choices.
+	r.reRollChance()
+}
+
+// reRollChance recomputes chance-node EVs after risk-attitude choices changed decisions.
+func (r *Result) reRollChance() {
+	for i := len(r.Nodes) - 1; i >= 0; i-- {
+		n := r.Nodes[i]
+		if r.broken[i] {
+			continue
+		}
+		switch n.Kind {
+		case Chance:
+			sum := decimal.Zero
+			for bi, b := range n.Branches {
+				if p := r.prob[i][bi]; !p.IsZero() {
+					sum = sum.Add(p.Mul(r.branchValue(i, bi, b)))
+				}
+			}
+			r.value[i] = sum
+		case Decision:
+			if c := r.choice[i]; c >= 0 {
+				r.value[i] = r.branchValue(i, c, n.Branches[c])
+			}
+		}
+	}
+}
+
+// CertaintyEquivalent of a discrete gamble under U(x) = 1 − exp(−x/R):
+// CE = −R ln Σ p·exp(−x/R), computed with the largest exponent factored out so
+// large payoffs do not overflow. R < 0 gives the risk-seeking form
+// U(x) = exp(x/|R|) − 1, which has the same CE expression.
+func CertaintyEquivalent(probs, values []float64, R float64) float64 {
+	if len(values) == 0 {
+		return 0
+	}
+	m := math.Inf(-1)
+	for _, x := range values {
+		m = math.Max(m, -x/R)
+	}
+	s := 0.0
+	for k, x := range values {
+		s += probs[k] * math.Exp(-x/R-m)
+	}
+	return -R * (m + math.Log(s))
+}
+
+// ParseTolerance evaluates a risk tolerance text: a non-zero finite number.
+func ParseTolerance(src string, vars MapEnv) (float64, error) {
+	if strings.TrimSpace(src) == "" {
+		return 0, fmt.Errorf("missing (give R, the risk tolerance, in the project's units)")
+	}
+	f, err := ParseFormula(src)
+	if err != nil {
+		return 0, err
+	}
+	v, err := f.Eval(vars)
+	if err != nil {
+		return 0, err
+	}
+	if v.IsZero() {
+		return 0, fmt.Errorf("R cannot be 0 (a very large R means nearly risk-neutral; leave the attitude off for exactly risk-neutral)")
+	}
+	return v.InexactFloat64(), nil
+}
+
+// markPolicy follows the recommended choice at each decision from the root.
+func (r *Result) markPolicy() {
+	if len(r.Nodes) == 0 {
+		return
+	}
+	r.onPolicy[0] = true
+	for i, n := range r.Nodes {
+		if !r.onPolicy[i] {
+			continue
+		}
+		for bi, b := range n.Branches {
+			if b.To == nil || !r.owns(b.To, i) {
+				continue
+			}
+			if n.Kind == Decision && bi != r.choice[i] {
+				continue
+			}
+			r.onPolicy[b.To.index] = true
+		}
+	}
+}
+
+// forward computes path probability and accumulated cash from the root down.
+func (r *Result) forward() {
+	count := len(r.Nodes)
+	r.pathValue = make([]decimal.Decimal, count)
+	r.pathProb = make([]decimal.Decimal, count)
+	if count == 0 {
+		return
+	}
+	r.pathProb[0] = one
+	for i := 1; i < count; i++ {
+		pi, bi := int(r.parent[i]), int(r.parentBranch[i])
+		pn := r.Nodes[pi]
+		v := r.pathValue[pi]
+		if pn.Kind == Decision || pn.Kind == Chance {
+			if c := r.cash[pi][bi]; !c.IsZero() {
+				v = v.Add(c)
+			}
+		}
+		r.pathValue[i] = v
+		pp := r.pathProb[pi]
+		if pn.Kind == Chance {
+			if p := r.prob[pi][bi]; !p.Equal(one) {
+				pp = pp.Mul(p)
+			}
+		}
+		r.pathProb[i] = pp
+	}
+	for i, n := range r.Nodes {
+		if n.Kind == End {
+			r.pathValue[i] = r.pathValue[i].Add(r.payoff[i])
+		}
+	}
+}
+
+// PathRow is one line of the path table: an end node and how it is reached.
+type PathRow struct {
+	End          *Node
+	Labels       []string // branch labels from the root
+	Probability  decimal.Decimal
+	Payoff       decimal.Decimal // cash along the path plus the end payoff
+	Contribution decimal.Decimal // Probability × Payoff
+	Optimal      bool            // on the recommended policy
+}
+
+// Paths lists every end node in tree order with its path figures.
+func (r *Result) Paths() []PathRow {
+	var rows []PathRow
+	for i, n := range r.Nodes {
+		if n.Kind != End {
+			continue
+		}
+		rows = append(rows, PathRow{
+			End: n, Labels: r.Labels(n), Probability: r.pathProb[i], Payoff: r.pathValue[i],
+			Contribution: r.pathProb[i].Mul(r.pathValue[i]), Optimal: r.onPolicy[i],
+		})
+	}
+	return rows
+}
+
+// Labels is the list of branch labels from the root to n.
+func (r *Result) Labels(n *Node) []string {
+	if !r.has(n) {
+		return nil
+	}
+	var labels []string
+	for i := n.index; i > 0; i = int(r.parent[i]) {
+		labels = append(labels, r.Nodes[r.parent[i]].Branches[r.parentBranch[i]].Label)
+	}
+	for a, b := 0, len(labels)-1; a < b; a, b = a+1, b-1 {
+		labels[a], labels[b] = labels[b], labels[a]
+	}
+	return labels
+}
+
+// ParentOf returns the parent node and branch index of n from the last evaluation.
+func (r *Result) ParentOf(n *Node) (*Node, int) {
+	if !r.has(n) || n.index == 0 {
+		return nil, -1
+	}
+	return r.Nodes[r.parent[n.index]], int(r.parentBranch[n.index])
+}
+
+// PolicyStep is one decision on the recommended path.
+type PolicyStep struct {
+	Node   *Node
+	Choice int
+	Ties   []int
+}
+
+// Policy lists the decisions reached under the recommended policy, in tree order.
+func (r *Result) Policy() []PolicyStep {
+	var steps []PolicyStep
+	for i, n := range r.Nodes {
+		if n.Kind == Decision && r.onPolicy[i] && r.choice[i] >= 0 {
+			steps = append(steps, PolicyStep{Node: n, Choice: r.choice[i], Ties: r.ties[i]})
+		}
+	}
+	return steps
+}
+
+// Depth is the number of branches from the root to n.
+func (r *Result) Depth(n *Node) int {
+	d := 0
+	if !r.has(n) {
+		return 0
+	}
+	for i := n.index; i > 0; i = int(r.parent[i]) {
+		d++
+	}
+	return d
+}
+
+// SortProblems orders problems by their place in the tree (project-level first).
+func (r *Result) SortProblems() {
+	pos := map[string]int{}
+	for i, n := range r.Nodes {
+		if _, ok := pos[n.ID]; !ok {
+			pos[n.ID] = i + 1
+		}
+	}
+	sort.SliceStable(r.Problems, func(a, b int) bool { return pos[r.Problems[a].NodeID] < pos[r.Problems[b].NodeID] })
+}
