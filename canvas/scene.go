@@ -177,20 +177,21 @@ func Build(p *engine.Project, r *engine.Result, l *Layout, opts Options, viewpor
 	b := sceneBuilder{s: s, th: th, l: l, r: r, opts: opts}
 	for i := range l.Boxes {
 		box := &l.Boxes[i]
-		vis := l.Box(i)
-		if box.Parent >= 0 {
+		boxVis := l.Box(i).Intersects(viewport)
+		fanVis := false
+		if box.Parent >= 0 && !boxVis {
 			py := l.Boxes[box.Parent].Y
 			c := l.Columns[box.Depth]
-			vis = vis.union(Rect{c.FanX, math.Min(py, box.Y), c.BranchX - c.FanX, math.Abs(py - box.Y)})
+			fanVis = Rect{c.FanX, math.Min(py, box.Y), c.BranchX - c.FanX, math.Abs(py - box.Y)}.Intersects(viewport)
 		}
-		if !vis.Intersects(viewport) {
+		if !boxVis && !fanVis {
 			continue
 		}
 		showValue := opts.RevealColumns < 0 || box.Depth >= maxDepth-opts.RevealColumns
 		if opts.HideWorkingNumbers && box.Depth != 0 && box.Node.Kind != engine.End {
 			showValue = false
 		}
-		b.node(i, showValue)
+		b.node(i, showValue, boxVis)
 	}
 	if t := opts.Selected; !t.IsZero() {
 		if h, ok := s.HitFor(t); ok {
@@ -232,7 +233,7 @@ func (b *sceneBuilder) hit(r Rect, t Target, tip string) {
 	b.s.Hits = append(b.s.Hits, Hit{Rect: r, Target: t, Tip: tip})
 }
 
-func (b *sceneBuilder) node(i int, showValue bool) {
+func (b *sceneBuilder) node(i int, showValue, boxVisible bool) {
 	th, l, r := b.th, b.l, b.r
 	box := &l.Boxes[i]
 	n := box.Node
@@ -263,6 +264,9 @@ func (b *sceneBuilder) node(i int, showValue bool) {
 		py := l.Boxes[box.Parent].Y
 		pts := []Point{{c.FanX, py}, {c.BranchX, y}, {x - half, y}}
 		b.s.Prims = append(b.s.Prims, Prim{Kind: PrimPolyline, Role: branchRole, Points: pts})
+	}
+	if !boxVisible { // only the slanted part of the branch crosses the viewport
+		return
 	}
 	// Outgoing stub under the value text, to where the children's branches fan out.
 	if box.nkids > 0 {
