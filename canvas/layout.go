@@ -339,6 +339,14 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				source(&e.Cash, &e.cashSrc, br.Cash, th.NumberSize, th.MaxLabelWidth/2)
 			}
 			notes = opts.notesFor(parent, bi, n)
+			if r != nil && parent.Kind == engine.Decision {
+				for _, t := range r.Ties(parent) {
+					if t == bi {
+						notes = append(notes, "ties with the recommended choice")
+						break
+					}
+				}
+			}
 		} else {
 			e.Label, e.Prob, e.Cash = TextRun{}, TextRun{}, TextRun{}
 		}
@@ -370,7 +378,23 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		default:
 			e.Payoff, e.Value = TextRun{}, TextRun{}
 		}
-		if msgs := problems[n.ID]; !sameStrings(msgs, e.problemsSrc) {
+		msgs := problems[n.ID]
+		hidden := 0
+		if collapsed {
+			hidden = -1
+			inside := 0
+			engine.Walk(n, func(m *engine.Node, _ int) bool {
+				hidden++
+				if m != n {
+					inside += len(problems[m.ID])
+				}
+				return true
+			})
+			if inside > 0 {
+				msgs = append(msgs[:len(msgs):len(msgs)], itoa(inside)+" problem(s) in the folded part")
+			}
+		}
+		if !sameStrings(msgs, e.problemsSrc) {
 			e.problemsSrc = msgs
 			e.Problems = nil
 			for _, m := range msgs {
@@ -379,8 +403,6 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		}
 		self := int32(len(l.Boxes))
 		if collapsed {
-			hidden := -1
-			engine.Walk(n, func(*engine.Node, int) bool { hidden++; return true })
 			b.Hidden = hidden
 			if hidden != e.hiddenSrc || e.HiddenNote.Text == "" {
 				e.hiddenSrc = hidden

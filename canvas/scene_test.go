@@ -243,3 +243,30 @@ func TestCleanText(t *testing.T) {
 	assert.LessOrEqual(t, ct.width, 120.0)
 	assert.True(t, strings.HasSuffix(ct.text, ellipsis))
 }
+
+func TestTiesAndFoldedProblemsAreNoted(t *testing.T) {
+	p, _ := smallTree(t)
+	p.Root.Branches[1].To.Payoff = "50" // Skip now equals Try's 50
+	r := engine.Evaluate(p)
+	require.NotEmpty(t, r.Ties(p.Root))
+	l := LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
+	tied := p.Root.Branches[r.Ties(p.Root)[0]].To
+	notes := l.Boxes[l.Index(tied)].Notes
+	require.Len(t, notes, 1)
+	assert.Contains(t, notes[0].Text, "ties")
+
+	chance := p.Root.Branches[0].To
+	chance.Branches[0].To.Payoff = "oops(" // a problem at a node that will be hidden
+	chance.Collapsed = true
+	r = engine.Evaluate(p)
+	require.False(t, r.Valid())
+	l = LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
+	box := l.Boxes[l.Index(chance)]
+	require.Empty(t, r.ProblemsAt(chance))
+	require.NotEmpty(t, box.Problems, "problems below a folded node show on its stub")
+	assert.Contains(t, box.Problems[0].Text, "1 problem(s) in the folded part")
+	s := Build(p, r, l, DefaultOptions(), Rect{})
+	h, ok := s.HitFor(Target{chance, -1, FieldNode})
+	require.True(t, ok)
+	assert.NotEmpty(t, h.Tip)
+}

@@ -35,8 +35,8 @@ type View struct {
 
 	zoom      float64       // screen units per logical unit
 	offset    fyne.Position // screen position of the logical origin
-	needFit   bool // fit the whole tree at the next draw
-	autoFit   bool // keep fitting on resize until the user zooms or pans
+	needFit   bool          // fit the whole tree at the next draw
+	autoFit   bool          // keep fitting on resize until the user zooms or pans
 	focused   bool
 	tip       string
 	tipAt     fyne.Position
