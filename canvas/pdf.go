@@ -38,6 +38,7 @@ func PageSize(name string, landscape bool) (w, h float64, ok bool) {
 }
 
 const (
+	maxPDFPages = 200
 	pageMargin  = 36 // half an inch
 	tileOverlap = 24 // repeated on neighbouring tiles so cut branches can be matched
 )
@@ -81,6 +82,9 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 	th := l.Theme
 	header := headerHeight(&th)
 	plan := planPDF(l.Bounds, pw, ph, header, eo.Tile)
+	if len(plan.tiles) > maxPDFPages {
+		return fmt.Errorf("the tree would need %d pages (%d × %d); fit it on one page or choose a larger page", len(plan.tiles), plan.rows, plan.cols)
+	}
 	c := vgpdf.New(vg.Length(pw), vg.Length(ph))
 	c.EmbedFonts(true)
 	pageRect := vg.Rectangle{Max: vg.Point{X: vg.Length(pw), Y: vg.Length(ph)}}
