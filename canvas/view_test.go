@@ -236,3 +236,24 @@ func TestViewSetDataOnEveryEdit(t *testing.T) {
 	assert.True(t, v.Selected().IsZero())
 	v.SetData(nil, nil)
 }
+
+func TestViewTooltipShowsFullText(t *testing.T) {
+	p, r := smallTree(t)
+	long := "Try the pilot in the northern depot first, then decide about the others"
+	p.Root.Branches[0].Label = long
+	r = engine.Evaluate(p)
+	v, _ := newTestView(t, p, r, fyne.NewSize(900, 300))
+	h, ok := v.scene.HitFor(Target{p.Root, 0, FieldLabel})
+	require.True(t, ok)
+	if h.Tip == "" {
+		t.Skip("label fits at this theme's width; nothing to show")
+	}
+	assert.Equal(t, long, h.Tip)
+	at := v.toScreen(Point{h.Rect.X + h.Rect.W/2, h.Rect.Y + h.Rect.H/2})
+	v.MouseMoved(&desktop.MouseEvent{PointEvent: fyne.PointEvent{Position: at}})
+	rend := test.WidgetRenderer(v).(*viewRenderer)
+	assert.True(t, rend.tipText.Visible())
+	assert.Equal(t, long, rend.tipText.Text)
+	v.MouseOut()
+	assert.False(t, rend.tipText.Visible())
+}
