@@ -18,8 +18,9 @@ type Layout struct {
 	Bounds  Rect
 	Theme   Theme
 
-	kids  []int32 // children of box i are kids[Boxes[i].kid0 : kid0+nkids]
-	index map[*engine.Node]int
+	kids    []int32 // children of box i are kids[Boxes[i].kid0 : kid0+nkids]
+	index   map[*engine.Node]int
+	lookups int
 }
 
 // Column is the horizontal plan of one depth.
@@ -100,6 +101,16 @@ func (l *Layout) Kids(i int) []int32 {
 
 // Index returns the box index of node n, or -1 when n is not shown.
 func (l *Layout) Index(n *engine.Node) int {
+	if l.index == nil && l.lookups < 8 {
+		// A few lookups (the selection after an edit) scan; many build a map.
+		l.lookups++
+		for i := range l.Boxes {
+			if l.Boxes[i].Node == n {
+				return i
+			}
+		}
+		return -1
+	}
 	if l.index == nil {
 		l.index = make(map[*engine.Node]int, len(l.Boxes))
 		for i := range l.Boxes {
@@ -134,7 +145,9 @@ func (l *Layout) SubtreeBounds(i int) Rect {
 
 // Layouter lays trees out and remembers, per node, the formatted numbers and
 // measured texts of the last layout, so the re-layout after an edit formats
-// and measures only what changed. It is not safe for concurrent use.
+// and measures only what changed. A Layout it returns stays valid until the
+// next-but-one call of Layout (its arrays are then reused); use LayoutTree for
+// a layout to keep. It is not safe for concurrent use.
 type Layouter struct {
 	measure *measureCache
 	entries map[*engine.Node]*nodeEntry
@@ -147,6 +160,12 @@ type Layouter struct {
 	// node visited is the same as last time and needs no map lookup.
 	order []*nodeEntry
 	nodes []*engine.Node
+	// Two sets of box and child arrays used in turn, so a steady stream of
+	// re-layouts allocates nothing: the layout returned by one call stays
+	// intact through the next call and is reused by the one after.
+	boxBuf [2][]NodeBox
+	kidBuf [2][]int32
+	turn   int
 }
 
 // layoutKey is everything besides the node itself that its texts depend on.
@@ -293,7 +312,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
-	l.Boxes = make([]NodeBox, 0, max(lo.last, 16))
+	lo.turn ^= 1
+	l.Boxes = lo.boxBuf[lo.turn][:0]
+	if cap(l.Boxes) < lo.last {
+		l.Boxes = make([]NodeBox, 0, lo.last+lo.last/8+16)
+	}
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
@@ -427,7 +450,13 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 
 	// Children lists: preorder makes a parent precede its children, and
 	// children of one parent appear in branch order.
-	l.kids = make([]int32, len(l.Boxes))
+	lo.boxBuf[lo.turn] = l.Boxes
+	l.kids = lo.kidBuf[lo.turn][:0]
+	if cap(l.kids) < len(l.Boxes) {
+		l.kids = make([]int32, 0, len(l.Boxes)+len(l.Boxes)/8+16)
+	}
+	l.kids = l.kids[:len(l.Boxes)]
+	lo.kidBuf[lo.turn] = l.kids
 	counts := lo.scratch.int32s(&lo.scratch.counts, len(l.Boxes))
 	for i := 1; i < len(l.Boxes); i++ {
 		counts[l.Boxes[i].Parent]++
