@@ -105,6 +105,7 @@ func TestExportSVG(t *testing.T) {
 			})
 			assert.Contains(t, all, p.Title)
 			assert.Contains(t, all, "14 March 2026")
+			assert.Contains(t, all, "A decision aid only")
 		})
 	}
 }
@@ -154,6 +155,7 @@ func TestExportPDF(t *testing.T) {
 			})
 			assert.Contains(t, text, "page 1 of 1")
 			assert.Contains(t, text, p.Title)
+			assert.Contains(t, text, "A decision aid only")
 		}
 	})
 
@@ -167,7 +169,7 @@ func TestExportPDF(t *testing.T) {
 		// title block, stepping by the area less the overlap
 		w, h, _ := PageSize("A4", false)
 		th := LightTheme()
-		areaW, areaH := w-2*pageMargin, h-2*pageMargin-headerHeight(&th)
+		areaW, areaH := w-2*pageMargin, h-2*pageMargin-headerHeight(&th)-footerHeight(&th, w-2*pageMargin)-6
 		cols := math.Ceil((l.Bounds.W - tileOverlap) / (areaW - tileOverlap))
 		rows := math.Ceil((l.Bounds.H - tileOverlap) / (areaH - tileOverlap))
 		want := int(cols * rows)
