@@ -145,9 +145,10 @@ func (l *Layout) SubtreeBounds(i int) Rect {
 
 // Layouter lays trees out and remembers, per node, the formatted numbers and
 // measured texts of the last layout, so the re-layout after an edit formats
-// and measures only what changed. A Layout it returns stays valid until the
-// next-but-one call of Layout (its arrays are then reused); use LayoutTree for
-// a layout to keep. It is not safe for concurrent use.
+// and measures only what changed. A Layout it returns is meant to be drawn
+// before the next call: the next call updates the texts it shares, and the
+// call after that reuses its arrays. Use LayoutTree for a layout to keep.
+// A Layouter is not safe for concurrent use.
 type Layouter struct {
 	measure *measureCache
 	entries map[*engine.Node]*nodeEntry
@@ -195,12 +196,16 @@ func (c *cachedNumber) get(d decimal.Decimal, format func(decimal.Decimal) strin
 // nodeEntry is what a Layouter remembers about one node.
 type nodeEntry struct {
 	NodeTexts
-	labelSrc, probSrc, cashSrc, payoffSrc string // formula texts when not evaluated
+	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed
+	valueSrc                              string
 	prob, cash, value, payoff             cachedNumber
 	notesSrc, problemsSrc                 []string
 	hiddenSrc                             int
 	seen                                  uint32
 }
+
+// numberSource marks a text that shows an evaluated number, not a source text.
+const numberSource = "\x00number"
 
 type walkItem struct {
 	n      *engine.Node
@@ -266,15 +271,32 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	numT := mc.table(th.NumberSize, false)
 	valT := mc.table(th.ValueSize, true)
 
+	type fieldKey struct {
+		node   string
+		branch int
+		field  string
+	}
 	var problems map[string][]string
+	var badField map[fieldKey]bool
 	if r != nil && len(r.Problems) > 0 {
 		problems = map[string][]string{}
+		badField = map[fieldKey]bool{}
 		for _, pr := range r.Problems {
 			if pr.NodeID != "" {
 				problems[pr.NodeID] = append(problems[pr.NodeID], pr.Msg)
+				badField[fieldKey{pr.NodeID, pr.Branch, pr.Field}] = true
 			}
 		}
 	}
+	// raw is the text shown for a field that could not be evaluated: what the
+	// user typed, or a question mark when it is empty.
+	raw := func(s string) string {
+		if strings.TrimSpace(s) == "" {
+			return "?"
+		}
+		return s
+	}
+	const noValue = "—" // a value that could not be computed
 	format := func(d decimal.Decimal) string { return engine.FormatValue(d, p.Decimals, p.Currency) }
 	formatP := engine.FormatProbability
 	fit := func(s string, size float64, max float64) TextRun {
@@ -287,9 +309,10 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		return tr
 	}
 	// number updates a measured number text when its string changed.
-	number := func(tr *TextRun, t map[string]float64, s string, size float64, bold bool) {
-		if tr.Text != s || s == "" {
+	number := func(tr *TextRun, src *string, t map[string]float64, s string, size float64, bold bool) {
+		if tr.Text != s || s == "" || *src != numberSource {
 			*tr = TextRun{Text: s, Width: mc.width(t, s, size, bold)}
+			*src = numberSource
 		}
 	}
 	// source updates a text fitted from a formula or label when its source changed.
@@ -348,16 +371,20 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			switch {
 			case parent.Kind != engine.Chance:
 				e.Prob, e.probSrc = TextRun{}, ""
+			case r != nil && badField[fieldKey{parent.ID, bi, "probability"}]:
+				source(&e.Prob, &e.probSrc, raw(br.Probability), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
-				number(&e.Prob, numT, e.prob.get(r.Probability(parent, bi), formatP), th.NumberSize, false)
+				number(&e.Prob, &e.probSrc, numT, e.prob.get(r.Probability(parent, bi), formatP), th.NumberSize, false)
 			default:
 				source(&e.Prob, &e.probSrc, br.Probability, th.NumberSize, th.MaxLabelWidth/2)
 			}
 			switch {
 			case strings.TrimSpace(br.Cash) == "":
 				e.Cash, e.cashSrc = TextRun{}, ""
+			case r != nil && badField[fieldKey{parent.ID, bi, "cash"}]:
+				source(&e.Cash, &e.cashSrc, raw(br.Cash), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
-				number(&e.Cash, numT, e.cash.get(r.Cash(parent, bi), format), th.NumberSize, false)
+				number(&e.Cash, &e.cashSrc, numT, e.cash.get(r.Cash(parent, bi), format), th.NumberSize, false)
 			default:
 				source(&e.Cash, &e.cashSrc, br.Cash, th.NumberSize, th.MaxLabelWidth/2)
 			}
@@ -384,9 +411,14 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		switch {
 		case n.Kind == engine.End && !collapsed:
 			e.Value = TextRun{}
-			if r != nil {
-				number(&e.Payoff, valT, e.payoff.get(r.PathValue(n), format), th.ValueSize, true)
-			} else {
+			switch {
+			case r != nil && badField[fieldKey{n.ID, -1, "payoff"}]:
+				source(&e.Payoff, &e.payoffSrc, raw(n.Payoff), th.ValueSize, th.MaxLabelWidth/2)
+			case r != nil && r.Broken(n):
+				number(&e.Payoff, &e.payoffSrc, valT, noValue, th.ValueSize, true)
+			case r != nil:
+				number(&e.Payoff, &e.payoffSrc, valT, e.payoff.get(r.PathValue(n), format), th.ValueSize, true)
+			default:
 				source(&e.Payoff, &e.payoffSrc, n.Payoff, th.ValueSize, th.MaxLabelWidth/2)
 			}
 		case r != nil:
@@ -397,7 +429,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 					v = ce
 				}
 			}
-			number(&e.Value, valT, e.value.get(v, format), th.ValueSize, true)
+			if r.Broken(n) {
+				number(&e.Value, &e.valueSrc, valT, noValue, th.ValueSize, true)
+			} else {
+				number(&e.Value, &e.valueSrc, valT, e.value.get(v, format), th.ValueSize, true)
+			}
 		default:
 			e.Payoff, e.Value = TextRun{}, TextRun{}
 		}

@@ -197,6 +197,26 @@ func TestProblemsAreMarked(t *testing.T) {
 	h, ok := s.HitFor(Target{bad, -1, FieldNode})
 	require.True(t, ok)
 	assert.Contains(t, h.Tip, r.ProblemsAt(bad)[0].Msg)
+
+	// the bad field shows what was typed, and the value that could not be
+	// computed shows a dash rather than a misleading zero
+	l := LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
+	assert.Equal(t, "1.7 +", l.Boxes[l.Index(bad.Branches[0].To)].Prob.Text)
+	require.True(t, r.Broken(bad))
+	assert.Equal(t, "—", l.Boxes[l.Index(bad)].Value.Text)
+
+	// and a layouter that saw the good tree switches texts both ways
+	lo := NewLayouter(FontMeasurer{})
+	bad.Branches[0].Probability = "0.5"
+	good := engine.Evaluate(p)
+	lo.Layout(p, good, DefaultOptions())
+	bad.Branches[0].Probability = "1.7 +"
+	l = lo.Layout(p, engine.Evaluate(p), DefaultOptions())
+	assert.Equal(t, "1.7 +", l.Boxes[l.Index(bad.Branches[0].To)].Prob.Text)
+	bad.Branches[0].Probability = "0.5"
+	good = engine.Evaluate(p)
+	l = lo.Layout(p, good, DefaultOptions())
+	assert.Equal(t, engine.FormatProbability(good.Probability(bad, 0)), l.Boxes[l.Index(bad.Branches[0].To)].Prob.Text)
 }
 
 func TestSceneCullsToViewport(t *testing.T) {
