@@ -2,6 +2,7 @@ package canvas
 
 import (
 	"image"
+	"image/color"
 	"image/png"
 	"os"
 	"path/filepath"
@@ -256,4 +257,35 @@ func TestViewTooltipShowsFullText(t *testing.T) {
 	assert.Equal(t, long, rend.tipText.Text)
 	v.MouseOut()
 	assert.False(t, rend.tipText.Visible())
+}
+
+func TestViewOverviewOfLargeTree(t *testing.T) {
+	p := bigTree(10000)
+	r := engine.Evaluate(p)
+	v, w := newTestView(t, p, r, fyne.NewSize(800, 600))
+	v.ZoomFit()
+	rend := test.WidgetRenderer(v).(*viewRenderer)
+	require.NotNil(t, rend.over, "a whole 10,000-node tree is drawn as one image")
+	assert.Less(t, len(rend.Objects()), 10)
+	img := rend.over.Image
+	require.NotNil(t, img)
+	bg := v.opts.Theme.Background
+	inked := 0
+	b := img.Bounds()
+	for y := b.Min.Y; y < b.Max.Y; y += 3 {
+		for x := b.Min.X; x < b.Max.X; x += 3 {
+			c := color.NRGBAModel.Convert(img.At(x, y)).(color.NRGBA)
+			if c != bg {
+				inked++
+			}
+		}
+	}
+	assert.Positive(t, inked, "the overview image shows the tree")
+	// a small pan moves the image instead of drawing it again
+	test.Drag(w.Canvas(), fyne.NewPos(400, 300), 10, 10)
+	assert.Same(t, img, rend.over.Image)
+	// taps still find nodes
+	h := v.scene.Hits[0]
+	got, _ := v.TargetAt(v.toScreen(Point{h.Rect.X + h.Rect.W/2, h.Rect.Y + h.Rect.H/2}))
+	assert.Equal(t, h.Target, got)
 }
