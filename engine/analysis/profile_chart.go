@@ -116,7 +116,7 @@ var barFills = []color.Color{
 	color.RGBA{R: 0x1f, G: 0x3a, B: 0x5f, A: 0xff}, // dark blue
 	color.RGBA{R: 0xf4, G: 0xb1, B: 0x83, A: 0xff}, // light orange
 	color.RGBA{R: 0x5b, G: 0x9b, B: 0x6b, A: 0xff}, // mid green
-	color.White,                                    // outline only
+	color.White, // outline only
 	color.RGBA{R: 0xa8, G: 0x8f, B: 0xc8, A: 0xff}, // light purple
 	color.RGBA{R: 0x70, G: 0x70, B: 0x70, A: 0xff}, // grey
 }
