@@ -89,11 +89,13 @@ func Analyse(p *engine.Project, opt Options) (*Analysis, error) {
 	if !ra.Valid() {
 		return nil, problemsError(ra)
 	}
-	neutralP := p.Clone()
-	neutralP.Risk = engine.RiskAttitude{}
-	rn := engine.Evaluate(neutralP)
-	if !rn.Valid() {
-		return nil, problemsError(rn)
+	rn := ra
+	if ra.RiskActive() {
+		neutralP := p.Clone()
+		neutralP.Risk = engine.RiskAttitude{}
+		if rn = engine.Evaluate(neutralP); !rn.Valid() {
+			return nil, problemsError(rn)
+		}
 	}
 	a := &Analysis{Result: ra, Neutral: rn, Minimize: active.Objective == engine.Minimize,
 		RiskOn: ra.RiskActive(), R: ra.Tolerance()}
