@@ -73,10 +73,13 @@ type riskPanel struct {
 	last   *analysis.Analysis
 	cancel context.CancelFunc
 	ready  bool // callbacks fired while the widgets are being built are ignored
+	// background runs the analysis off the event goroutine; tests run it inline
+	// because the Fyne test driver's fyne.Do does not hand back to one goroutine.
+	background func(func())
 }
 
 func newRiskPanel(h Host) *riskPanel {
-	rp := &riskPanel{host: h, nodeIDs: map[string]string{}}
+	rp := &riskPanel{host: h, nodeIDs: map[string]string{}, background: func(f func()) { go f() }}
 	rp.nodeSelect = widget.NewSelect(nil, func(string) { rp.refresh() })
 	rp.chartKind = widget.NewRadioGroup([]string{chartBars, chartCumulative}, func(string) { rp.refresh() })
 	rp.chartKind.Horizontal = true
@@ -256,7 +259,7 @@ func (rp *riskPanel) refresh() {
 	clone := p.Clone()
 	cumulative := rp.chartKind.Selected == chartCumulative
 	rp.busy.Show()
-	go func() {
+	rp.background(func() {
 		a, err := analysis.Analyse(clone, opt)
 		var img image.Image
 		if err == nil {
@@ -272,11 +275,11 @@ func (rp *riskPanel) refresh() {
 			rp.busy.Hide()
 			rp.show(a, img, err)
 		})
-	}()
+	})
 }
 
 func (rp *riskPanel) show(a *analysis.Analysis, img image.Image, err error) {
-	rp.last = a
+	defer func() { rp.last = a }() // last, so a reader of rp.last sees a finished panel
 	if err != nil {
 		rp.status.SetText(err.Error())
 		rp.cells = nil

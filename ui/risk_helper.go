@@ -75,7 +75,9 @@ func (h *toleranceHelper) content() fyne.CanvasObject {
 		widget.NewSeparator(), company, form, h.companyOut, h.suggestions)
 }
 
-func (h *toleranceHelper) format(d decimal.Decimal) string { return engine.FormatValue(d, h.decimals, h.unit) }
+func (h *toleranceHelper) format(d decimal.Decimal) string {
+	return engine.FormatValue(d, h.decimals, h.unit)
+}
 
 // recompute refreshes both suggestions and their "Use" buttons.
 func (h *toleranceHelper) recompute() {

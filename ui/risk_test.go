@@ -76,6 +76,7 @@ func TestRiskPanelShowsTableAndSetsAttitude(t *testing.T) {
 	h := &riskTestHost{win: test.NewWindow(nil), p: riskTestProject()}
 	h.r = engine.Evaluate(h.p)
 	rp := newRiskPanel(h)
+	rp.background = func(f func()) { f() }
 	h.panel = rp
 	h.win.SetContent(rp.Content())
 	h.win.Resize(fyne.NewSize(900, 900))
