@@ -145,19 +145,25 @@ func benefit(d Distribution, minimize bool) Distribution {
 	return NewDistribution(neg)
 }
 
-// support is the sorted union of both profiles' outcomes.
+// support is the sorted union of both profiles' outcomes (both are sorted).
 func support(a, b Distribution) []decimal.Decimal {
-	all := make([]Outcome, 0, len(a.Outcomes)+len(b.Outcomes))
-	for _, o := range a.Outcomes {
-		all = append(all, Outcome{Value: o.Value, Probability: decimal.NewFromInt(1)})
-	}
-	for _, o := range b.Outcomes {
-		all = append(all, Outcome{Value: o.Value, Probability: decimal.NewFromInt(1)})
-	}
-	merged := NewDistribution(all)
-	xs := make([]decimal.Decimal, len(merged.Outcomes))
-	for k, o := range merged.Outcomes {
-		xs[k] = o.Value
+	xs := make([]decimal.Decimal, 0, len(a.Outcomes)+len(b.Outcomes))
+	i, j := 0, 0
+	for i < len(a.Outcomes) || j < len(b.Outcomes) {
+		var x decimal.Decimal
+		switch {
+		case j >= len(b.Outcomes) || (i < len(a.Outcomes) && a.Outcomes[i].Value.LessThan(b.Outcomes[j].Value)):
+			x = a.Outcomes[i].Value
+			i++
+		case i >= len(a.Outcomes) || b.Outcomes[j].Value.LessThan(a.Outcomes[i].Value):
+			x = b.Outcomes[j].Value
+			j++
+		default: // equal
+			x = a.Outcomes[i].Value
+			i++
+			j++
+		}
+		xs = append(xs, x)
 	}
 	return xs
 }

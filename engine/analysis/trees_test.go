@@ -48,7 +48,7 @@ func randomTree(rng *rand.Rand, size int, objective engine.Objective, rootDecisi
 			}
 			var child *engine.Node
 			switch r := rng.IntN(10); {
-			case count+k >= size || r < 3:
+			case count+2*len(queue)+k >= size || r < 3: // queued nodes will add at least two children each
 				child = newNode(engine.End)
 				child.Payoff = fmt.Sprint(rng.IntN(2001) - 1000)
 			case r < 6:
