@@ -43,7 +43,8 @@ func ParsePositive(field, text string) (decimal.Decimal, error) {
 // message; a negative R is allowed and means risk-seeking.
 func ParseTolerance(text string, vars engine.MapEnv) (float64, error) {
 	t := strings.TrimSpace(text)
-	if strings.EqualFold(t, "nan") || strings.Contains(strings.ToLower(t), "inf") {
+	switch strings.ToLower(strings.TrimLeft(t, "+-")) {
+	case "nan", "inf", "infinity":
 		return 0, fmt.Errorf("risk tolerance: %q is not a number", text)
 	}
 	R, err := engine.ParseTolerance(t, vars)

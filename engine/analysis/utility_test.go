@@ -225,13 +225,15 @@ func TestParseToleranceBadInput(t *testing.T) {
 		{"250000", 250000, ""},
 		{"-5000", -5000, ""}, // risk-seeking, allowed
 		{"2 * budget", 2000, ""},
+		{"inflation * 10", 30, ""},
+		{"-Inf", 0, "not a number"},
 		{"0", 0, "R cannot be 0"},
 		{"", 0, "missing"},
 		{"abc", 0, "risk tolerance"},
 		{"NaN", 0, "not a number"},
 		{"1000 +", 0, "risk tolerance"},
 	}
-	vars := engine.MapEnv{"budget": decimal.NewFromInt(1000)}
+	vars := engine.MapEnv{"budget": decimal.NewFromInt(1000), "inflation": decimal.NewFromInt(3)}
 	for _, tc := range tests {
 		t.Run(tc.text, func(t *testing.T) {
 			got, err := ParseTolerance(tc.text, vars)
