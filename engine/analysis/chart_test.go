@@ -93,3 +93,24 @@ func TestChartImageSize(t *testing.T) {
 	assert.Equal(t, 320, img.Bounds().Dx())
 	assert.Equal(t, 200, img.Bounds().Dy())
 }
+
+func TestProbabilityTicksStopAtOne(t *testing.T) {
+	tests := []struct {
+		max  float64
+		want []string
+	}{
+		{1.4, []string{"0", "0.2", "0.4", "0.6", "0.8", "1"}},
+		{0.3, []string{"0", "0.05", "0.1", "0.15", "0.2", "0.25", "0.3"}},
+		{0.05, []string{"0", "0.01", "0.02", "0.03", "0.04", "0.05"}},
+	}
+	for _, tc := range tests {
+		var labels []string
+		for _, tk := range (probabilityTicks{}).Ticks(0, tc.max) {
+			assert.LessOrEqual(t, tk.Value, 1.0)
+			if tk.Label != "" {
+				labels = append(labels, tk.Label)
+			}
+		}
+		assert.Equal(t, tc.want, labels, "max %g", tc.max)
+	}
+}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"strconv"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -78,8 +79,19 @@ func (a *Analysis) ProfileChart(cumulative bool, profiles []*Profile) (*plot.Plo
 		return p, nil
 	}
 	maxP := 0.0
+	// Bars of several alternatives at one payoff sit side by side; elsewhere a
+	// bar stands exactly on its payoff.
+	seen := map[string]int{}
+	for _, pr := range profiles {
+		for _, o := range pr.Dist.Outcomes {
+			seen[o.Value.String()]++
+		}
+	}
 	for k, pr := range profiles {
 		bars := &stemBars{index: k, count: len(profiles), fill: barFill(k), outline: SeriesStyle(k)}
+		for _, o := range pr.Dist.Outcomes {
+			bars.shared = append(bars.shared, seen[o.Value.String()] > 1)
+		}
 		for _, o := range pr.Dist.Outcomes {
 			pv := o.Probability.InexactFloat64()
 			bars.pts = append(bars.pts, plotter.XY{X: o.Value.InexactFloat64(), Y: pv})
@@ -90,6 +102,7 @@ func (a *Analysis) ProfileChart(cumulative bool, profiles []*Profile) (*plot.Plo
 	}
 	// Head room for the legend above the tallest bar.
 	p.Y.Max = maxP * (1.2 + 0.08*float64(len(profiles)))
+	p.Y.Tick.Marker = probabilityTicks{}
 	if p.Y.Max <= 0 {
 		p.Y.Max = 1
 	}
@@ -127,6 +140,7 @@ func barFill(k int) color.Color { return barFills[k%len(barFills)] }
 // alternatives sit side by side around the payoff so none hides another.
 type stemBars struct {
 	pts          plotter.XYs
+	shared       []bool // payoff also reached by another profile: offset the bar
 	index, count int
 	fill         color.Color
 	outline      draw.LineStyle
@@ -144,14 +158,43 @@ func (b *stemBars) Plot(c draw.Canvas, plt *plot.Plot) {
 	offset := (vg.Length(b.index) - vg.Length(b.count-1)/2) * width
 	outline := b.outline
 	outline.Width = vg.Points(0.8)
-	for _, pt := range b.pts {
-		x := trX(pt.X) + offset
+	for i, pt := range b.pts {
+		x := trX(pt.X)
+		if b.shared[i] {
+			x += offset
+		}
 		y0, y1 := trY(0), trY(pt.Y)
 		poly := []vg.Point{{X: x - width/2, Y: y0}, {X: x - width/2, Y: y1}, {X: x + width/2, Y: y1}, {X: x + width/2, Y: y0}}
 		c.FillPolygon(b.fill, c.ClipPolygonY(poly))
 		closed := append(poly, poly[0])
 		c.StrokeLines(outline, c.ClipLinesY(closed)...)
 	}
+}
+
+// probabilityTicks label 0 … 1 in round steps and stop at 1, so no label
+// suggests a probability above it (the axis runs higher to make room for the
+// legend).
+type probabilityTicks struct{}
+
+// Ticks implements plot.Ticker.
+func (probabilityTicks) Ticks(min, max float64) []plot.Tick {
+	top := math.Min(max, 1)
+	step := 0.25
+	for _, s := range []float64{0.01, 0.02, 0.05, 0.1, 0.2, 0.25} {
+		if top/s <= 6 {
+			step = s
+			break
+		}
+	}
+	var out []plot.Tick
+	for k := 0; float64(k)*step <= top+1e-9; k++ {
+		v := math.Round(float64(k)*step*1000) / 1000 // 3 × 0.2 is 0.6, not 0.6000000000000001
+		out = append(out, plot.Tick{Value: v, Label: strconv.FormatFloat(v, 'f', -1, 64)})
+		if minor := v + step/2; minor <= top+1e-9 {
+			out = append(out, plot.Tick{Value: minor})
+		}
+	}
+	return out
 }
 
 // DataRange implements plot.DataRanger.
