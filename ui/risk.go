@@ -146,6 +146,7 @@ func newRiskPanel(h Host) *riskPanel {
 		showToleranceHelper(rp.host.Window(), p.Currency, p.Decimals, func(text string) {
 			rp.attitude.SetSelected(attitudeExponential)
 			rp.rEntry.SetText(text)
+			rp.applyAttitude() // undoable like any other edit
 		})
 	})
 	setAttitude := widget.NewButton("Set attitude", rp.applyAttitude)
