@@ -384,12 +384,17 @@ func (rp *riskPanel) exportChart() {
 	}
 	cumulative := rp.chartKind.Selected == chartCumulative
 	rp.saveDialog("risk-profile.png", []string{".png", ".svg", ".pdf"}, func(path string) error {
-		plt, err := a.ProfileChart(cumulative, nil)
-		if err != nil {
-			return err
-		}
-		return analysis.SaveChart(plt, path, 0, 0)
+		return writeProfileChart(a, cumulative, path)
 	})
+}
+
+// writeProfileChart saves the chart in the format the path's extension names.
+func writeProfileChart(a *analysis.Analysis, cumulative bool, path string) error {
+	plt, err := a.ProfileChart(cumulative, nil)
+	if err != nil {
+		return err
+	}
+	return analysis.SaveChart(plt, path, 0, 0)
 }
 
 func (rp *riskPanel) exportTable() {
@@ -399,8 +404,13 @@ func (rp *riskPanel) exportTable() {
 		return
 	}
 	rp.saveDialog("strategy-table.csv", []string{".csv"}, func(path string) error {
-		return engine.WriteAtomic(path, func(w io.Writer) error { return writeCSV(w, a.CSVRows()) })
+		return writeStrategyTable(a, path)
 	})
+}
+
+// writeStrategyTable saves the strategy table as CSV with exact decimals, atomically.
+func writeStrategyTable(a *analysis.Analysis, path string) error {
+	return engine.WriteAtomic(path, func(w io.Writer) error { return writeCSV(w, a.CSVRows()) })
 }
 
 func writeCSV(w io.Writer, rows [][]string) error {

@@ -1,6 +1,8 @@
 package ui
 
 import (
+	"os"
+	"path/filepath"
 	"testing"
 	"time"
 
@@ -115,6 +117,18 @@ func TestRiskPanelShowsTableAndSetsAttitude(t *testing.T) {
 	require.NoError(t, err)
 	assert.Equal(t, engine.RiskAttitude{}, h.p.Risk)
 	assert.Empty(t, h.errors)
+
+	// Exports: the chart by extension, the table as CSV with exact decimals.
+	dir := t.TempDir()
+	require.NoError(t, writeProfileChart(rp.last, true, filepath.Join(dir, "p.svg")))
+	svg, err := os.ReadFile(filepath.Join(dir, "p.svg"))
+	require.NoError(t, err)
+	assert.Contains(t, string(svg), "Payoff (EUR)")
+	assert.Error(t, writeProfileChart(rp.last, true, filepath.Join(dir, "p.bmp")))
+	require.NoError(t, writeStrategyTable(rp.last, filepath.Join(dir, "t.csv")))
+	data, err := os.ReadFile(filepath.Join(dir, "t.csv"))
+	require.NoError(t, err)
+	assert.Contains(t, string(data), "Cost plus,52000,")
 }
 
 func TestToleranceHelperSuggests(t *testing.T) {
