@@ -111,7 +111,7 @@ func newRiskPanel(h Host) *riskPanel {
 	rp.attitudeTxt.Wrapping = fyne.TextWrapWord
 	rp.chart = canvas.NewImageFromImage(nil)
 	rp.chart.FillMode = canvas.ImageFillContain
-	rp.chart.SetMinSize(fyne.NewSize(chartW, chartH))
+	rp.chart.SetMinSize(fyne.NewSize(chartW/2, chartH/2)) // drawn at full size, scaled to fit
 	rp.table = widget.NewTable(rp.tableSize, func() fyne.CanvasObject {
 		l := widget.NewLabel("")
 		l.Truncation = fyne.TextTruncateEllipsis
@@ -153,29 +153,32 @@ func newRiskPanel(h Host) *riskPanel {
 	exportChart := widget.NewButton("Export chart…", rp.exportChart)
 	exportTable := widget.NewButton("Export table (CSV)…", rp.exportTable)
 
-	attitudeBox := widget.NewCard("Attitude to risk", "", container.NewVBox(
-		rp.attitude,
-		container.NewBorder(nil, nil, nil, container.NewHBox(helper, setAttitude), rp.rEntry),
-		rp.rError,
-	))
+	rp.attitude.Horizontal = true
+	bold := func(text string) *widget.Label {
+		return widget.NewLabelWithStyle(text, fyne.TextAlignLeading, fyne.TextStyle{Bold: true})
+	}
 	controls := container.NewVBox(
 		container.NewBorder(nil, nil, widget.NewLabel("Compare alternatives at"), useSelected, rp.nodeSelect),
 		container.NewHBox(rp.chartKind, rp.strategies),
 		container.NewBorder(nil, nil, widget.NewLabel("Loss threshold"), nil, rp.lossEntry),
-		attitudeBox,
+		bold("Attitude to risk"),
+		rp.attitude,
+		container.NewBorder(nil, nil, widget.NewLabel("R"), container.NewHBox(helper, setAttitude), rp.rEntry),
+		rp.rError,
 	)
 	rp.tableSpace = canvas.NewRectangle(color.Transparent)
 	rp.tableSpace.SetMinSize(fyne.NewSize(400, 120))
 	tableBox := container.NewStack(rp.tableSpace, rp.table)
+	// Controls, table and sentences scroll on the left; the chart keeps the right.
 	rp.body = container.NewVBox(
-		controls, rp.busy, rp.status, rp.attitudeTxt, rp.chart,
-		container.NewHBox(exportChart, exportTable),
-		widget.NewLabelWithStyle("Strategy table", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}),
-		tableBox, rp.stratNote,
-		widget.NewLabelWithStyle("Dominance", fyne.TextAlignLeading, fyne.TextStyle{Bold: true}),
-		rp.dominance, caution,
+		controls, rp.busy, rp.status, rp.attitudeTxt,
+		bold("Strategy table"), tableBox, rp.stratNote,
+		bold("Dominance"), rp.dominance, caution,
 	)
-	rp.content = container.NewVScroll(rp.body)
+	chartSide := container.NewBorder(nil, container.NewHBox(exportChart, exportTable), nil, nil, rp.chart)
+	split := container.NewHSplit(container.NewVScroll(rp.body), chartSide)
+	split.Offset = 0.55
+	rp.content = split
 	rp.syncFromProject()
 	rp.ready = true
 	return rp
