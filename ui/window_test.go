@@ -20,6 +20,14 @@ import (
 
 func newTestEditor(t *testing.T, p *engine.Project) *Editor {
 	t.Helper()
+	// The editor's tests do not run the analysis panels other files register:
+	// some compute in goroutines, and the test driver runs fyne.Do on the
+	// calling goroutine instead of the event loop.
+	if !keepPanels {
+		saved := panels
+		panels = nil
+		t.Cleanup(func() { panels = saved })
+	}
 	a := test.NewTempApp(t)
 	w := test.NewWindow(nil)
 	w.Resize(fyne.NewSize(1200, 800))
@@ -417,6 +425,8 @@ func TestAutosaveAndRecovery(t *testing.T) {
 	assert.True(t, os.IsNotExist(err))
 }
 
+var keepPanels bool
+
 type countingPanel struct{ updates int }
 
 func (c *countingPanel) Title() string              { return "Counting" }
@@ -427,6 +437,9 @@ func TestPanelsAndMenusFromRegistry(t *testing.T) {
 	cp := &countingPanel{}
 	saved, savedMenus := panels, menuEntries
 	t.Cleanup(func() { panels, menuEntries = saved, savedMenus })
+	panels = nil
+	keepPanels = true
+	t.Cleanup(func() { keepPanels = false })
 	RegisterPanel(1000, func(Host) Panel { return cp })
 	ran := false
 	RegisterMenu(MenuEntry{Menu: "Analyse", Label: "Count", Action: func(h Host) { ran = h.Project() != nil }})
