@@ -2,6 +2,8 @@ package ui
 
 import (
 	"errors"
+	"fmt"
+	"strings"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/canvas"
@@ -274,7 +276,9 @@ func (e *Editor) editInPlace(t Target) {
 	entry.SetText(fieldText(t))
 	errText := canvas.NewText("", theme.Color(theme.ColorNameError))
 	errText.TextSize = theme.CaptionTextSize()
-	box := container.NewVBox(entry, errText)
+	caption := canvas.NewText(fieldCaption(t), theme.Color(theme.ColorNameForeground))
+	caption.TextSize = theme.CaptionTextSize()
+	box := container.NewVBox(caption, entry, errText)
 	pop := widget.NewPopUp(box, e.win.Canvas())
 	entry.onEscape = e.closeInPlace
 	entry.OnSubmitted = func(text string) {
@@ -295,11 +299,19 @@ func (e *Editor) editInPlace(t Target) {
 		pos = fyne.NewPos(40, 60)
 		size = fyne.NewSize(200, entry.MinSize().Height)
 	}
-	width := max(size.Width+40, 220)
+	width := max(size.Width+40, caption.MinSize().Width+theme.Padding()*4, 260)
 	pop.ShowAtPosition(pos)
 	pop.Resize(fyne.NewSize(width, box.MinSize().Height+theme.Padding()*2))
 	e.inplace, e.inplaceEntry = pop, entry
 	e.win.Canvas().Focus(entry)
+}
+
+// fieldCaption says what the in-place entry edits: "Probability of branch "Late"".
+func fieldCaption(t Target) string {
+	if t.Branch >= 0 && t.Branch < len(t.Node.Branches) {
+		return fmt.Sprintf("%s of branch %q (Enter to apply, Escape to cancel)", strings.ToUpper(t.Field[:1])+t.Field[1:], engine.BranchTitle(t.Node, t.Branch))
+	}
+	return fmt.Sprintf("%s of node %q (Enter to apply, Escape to cancel)", strings.ToUpper(t.Field[:1])+t.Field[1:], engine.NodeTitle(t.Node))
 }
 
 func (e *Editor) closeInPlace() {

@@ -51,6 +51,7 @@ func (e *Editor) keyBindings() []struct {
 		{shortcut(fyne.KeyMinus, ctrl), func() { e.view.ZoomOut() }},
 		{shortcut(fyne.Key0, ctrl), func() { e.view.ZoomFit() }},
 		{shortcut(fyne.KeyComma, ctrl), e.projectSettings},
+		{shortcut(fyne.KeyPlus, ctrl), func() { e.view.ZoomIn() }},
 	}
 }
 

@@ -79,10 +79,11 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 	if len(e.panels) > 0 {
 		e.analysis = container.NewAppTabs()
 		for _, panel := range e.panels {
-			e.analysis.Append(container.NewTabItem(panel.Title(), panel.Content()))
+			// A scroll around each panel lets the split give the tree most of the height.
+			e.analysis.Append(container.NewTabItem(panel.Title(), container.NewScroll(panel.Content())))
 		}
 		split := container.NewVSplit(centre, e.analysis)
-		split.Offset = 0.7
+		split.Offset = 0.66
 		main = split
 	}
 	win.SetContent(container.NewBorder(e.toolbar(), e.status, nil, nil, main))
