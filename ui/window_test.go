@@ -52,6 +52,46 @@ func marshalString(t *testing.T, p *engine.Project) string {
 	return string(data)
 }
 
+// tapOn taps the tree view where a target is drawn, as a person would: it
+// looks for a point whose hit region is that target, then taps there.
+func tapOn(t *testing.T, e *Editor, target Target) {
+	t.Helper()
+	v := e.view.(*canvasView).v
+	test.TapAt(v, pointOf(t, e, target))
+	require.Equal(t, target.Node, e.Selection().Node, "the tap selects the place")
+	require.Equal(t, target.Branch, e.Selection().Branch)
+}
+
+// pointOf finds a point of the view whose hit region is the target.
+func pointOf(t *testing.T, e *Editor, target Target) fyne.Position {
+	t.Helper()
+	v := e.view.(*canvasView).v
+	e.win.Canvas().Capture() // lays the window out and draws it: the hit regions come from drawing
+	want := toCanvas(target)
+	size := v.Size()
+	for y := float32(1); y < size.Height; y += 2 {
+		for x := float32(1); x < size.Width; x += 2 {
+			if got, _ := v.TargetAt(fyne.NewPos(x, y)); got == want {
+				return fyne.NewPos(x, y)
+			}
+		}
+	}
+	t.Fatalf("%v is not drawn in the view", want)
+	return fyne.Position{}
+}
+
+// tapNode selects node n by tapping the label of the branch leading to it
+// (or the root's shape).
+func tapNode(t *testing.T, e *Editor, n *engine.Node) {
+	t.Helper()
+	if parent, i := e.Project().Parent(n); parent != nil {
+		tapOn(t, e, Target{Node: parent, Branch: i, Field: engine.FieldLabel})
+	} else {
+		tapOn(t, e, Target{Node: n, Branch: -1, Field: "node"})
+	}
+	require.Equal(t, n, e.selectedNode())
+}
+
 // buildLaunchTree builds, by taps and typing, a three-level tree:
 // a decision between "Launch" (a chance node: Success 100 with probability
 // 0.3, Failure -20) and "Hold" (10).
@@ -64,13 +104,13 @@ func buildLaunchTree(t *testing.T, e *Editor) {
 
 	typeInto(in.Field(engine.FieldName).entry, "Launch or hold")
 	launch := root.Branches[0].To
-	e.SelectNode(launch)
+	tapNode(t, e, launch)
 	typeInto(in.Field(engine.FieldLabel).entry, "Launch")
 	test.Tap(e.Button("chance"))
 	require.Equal(t, engine.Chance, launch.Kind)
 	require.Len(t, launch.Branches, 2)
 
-	e.SelectNode(launch.Branches[0].To)
+	tapNode(t, e, launch.Branches[0].To)
 	typeInto(in.Field(engine.FieldLabel).entry, "Success")
 	typeInto(in.Field(engine.FieldProbability).entry, "0.3")
 	typeInto(in.Field(engine.FieldPayoff).entry, "100")
@@ -79,11 +119,11 @@ func buildLaunchTree(t *testing.T, e *Editor) {
 	test.Tap(e.Button("delete"))
 	require.Len(t, launch.Branches, 2)
 
-	e.SelectNode(launch.Branches[1].To)
+	tapNode(t, e, launch.Branches[1].To)
 	typeInto(in.Field(engine.FieldLabel).entry, "Failure")
 	typeInto(in.Field(engine.FieldPayoff).entry, "-20")
 
-	e.SelectNode(root.Branches[1].To)
+	tapNode(t, e, root.Branches[1].To)
 	typeInto(in.Field(engine.FieldLabel).entry, "Hold")
 	typeInto(in.Field(engine.FieldPayoff).entry, "10")
 }
@@ -173,9 +213,16 @@ func TestInPlaceEditing(t *testing.T) {
 	buildLaunchTree(t, e)
 	launch := e.Project().Root.Branches[0].To
 	target := Target{Node: launch, Branch: 0, Field: engine.FieldProbability}
-	e.setSelection(target, false)
-	e.typedKey(fyne.KeyF2)
+	e.view.(*canvasView).v.DoubleTapped(&fyne.PointEvent{Position: pointOf(t, e, target)})
 	en := e.inPlaceEntry()
+	require.NotNil(t, en, "a double tap on the probability opens an entry")
+	assert.Equal(t, "0.3", en.Text)
+	en.TypedKey(&fyne.KeyEvent{Name: fyne.KeyEscape})
+	require.Nil(t, e.inPlaceEntry())
+	assert.Equal(t, target, e.Selection())
+
+	e.typedKey(fyne.KeyF2)
+	en = e.inPlaceEntry()
 	require.NotNil(t, en, "F2 opens an entry")
 	assert.Equal(t, "0.3", en.Text)
 
