@@ -103,9 +103,9 @@ type Setting struct {
 	Low, High, Base decimal.Decimal
 	Rule            string // RuleRest or RuleScale for a probability; "" otherwise
 
-	branch    int             // resolved branch index
-	rest      int             // the node's rest branch (RuleRest)
-	others    []int           // branches that scale (RuleScale)
+	branch    int   // resolved branch index
+	rest      int   // the node's rest branch (RuleRest)
+	others    []int // branches that scale (RuleScale)
 	otherBase []decimal.Decimal
 	otherSum  decimal.Decimal // total of the others at base
 	absorb    int             // under RuleScale, the other branch written as rest so the total stays exactly 1
@@ -139,6 +139,11 @@ func (s *Setting) BranchIndex() int {
 // may be nil: a variable then uses its low and high, a probability 0 to 1; cash
 // and payoff need a range. Errors name the place (variable, node, branch, field).
 func Prepare(p *engine.Project, r *engine.Result, in Input, rng *Range) (*Setting, error) {
+	return prepare(p, r, in, rng, true)
+}
+
+// prepare is Prepare; checkEnds evaluates the project exactly at both ends.
+func prepare(p *engine.Project, r *engine.Result, in Input, rng *Range, checkEnds bool) (*Setting, error) {
 	if err := requireValid(r); err != nil {
 		return nil, err
 	}
@@ -156,6 +161,9 @@ func Prepare(p *engine.Project, r *engine.Result, in Input, rng *Range) (*Settin
 	}
 	if s.Low.Equal(s.High) {
 		return nil, fmt.Errorf("%s: low and high are both %s, so there is nothing to vary", place, s.Low)
+	}
+	if !checkEnds {
+		return s, nil
 	}
 	// The ends must give a valid project: a variable may feed a probability.
 	ex := newExact(p, s)
@@ -389,3 +397,66 @@ func (e *exactModel) eval(xs ...decimal.Decimal) (*engine.Result, error) {
 
 // node returns the clone's node with the given id.
 func (e *exactModel) node(id string) *engine.Node { return e.clone.FindNode(id) }
+
+// fastInput writes a setting's value into a FastModel compiled from the
+// original project.
+type fastInput struct {
+	s      *Setting
+	varIdx int   // the variable's slot, or -1
+	field  int   // the field's slot, or -1 (a rest branch is computed by Roll)
+	others []int // field slots of RuleScale's other branches
+}
+
+func (s *Setting) bindFast(m *engine.FastModel, p *engine.Project) (fastInput, error) {
+	b := fastInput{s: s, varIdx: -1, field: -1}
+	if s.Input.IsVariable() {
+		i, ok := m.VarIndex(s.Input.Variable)
+		if !ok {
+			return b, fmt.Errorf("unknown variable %q", s.Input.Variable)
+		}
+		b.varIdx = i
+		return b, nil
+	}
+	n := p.FindNode(s.Input.NodeID)
+	if n == nil {
+		return b, fmt.Errorf("unknown node %q", s.Input.NodeID)
+	}
+	branch := s.branch
+	if s.Input.Field == FieldPayoff {
+		branch = -1
+	}
+	isRest := branch >= 0 && strings.TrimSpace(n.Branches[branch].Probability) == engine.RestProbability
+	if !(s.Input.Field == FieldProbability && isRest) {
+		i, ok := m.FieldIndex(n, branch, s.Input.Field)
+		if !ok {
+			return b, fmt.Errorf("%s: not found in the compiled model", s.Input)
+		}
+		b.field = i
+	}
+	if s.Rule == RuleScale {
+		for _, j := range s.others {
+			i, ok := m.FieldIndex(n, j, FieldProbability)
+			if !ok {
+				return b, fmt.Errorf("%s: not found in the compiled model", engine.Place(n, j))
+			}
+			b.others = append(b.others, i)
+		}
+	}
+	return b, nil
+}
+
+// set writes x; the caller rolls the model back afterwards.
+func (b fastInput) set(m *engine.FastModel, x float64) {
+	if b.varIdx >= 0 {
+		m.SetVar(b.varIdx, x)
+		return
+	}
+	if b.field >= 0 {
+		m.SetField(b.field, x)
+	}
+	if len(b.others) > 0 {
+		for k, q := range b.s.scaledFloat(x) {
+			m.SetField(b.others[k], q)
+		}
+	}
+}
