@@ -290,7 +290,11 @@ func (s *Setting) prepareField(p *engine.Project, r *engine.Result, rng *Range) 
 				fixed = fixed.Add(r.Probability(n, i))
 			}
 		}
-		if limit := decimal.NewFromInt(1).Sub(fixed); s.High.GreaterThan(limit) {
+		limit := decimal.NewFromInt(1).Sub(fixed)
+		if rng == nil && s.High.GreaterThan(limit) {
+			s.High = limit // the most the other branches leave
+		}
+		if s.High.GreaterThan(limit) {
 			return fmt.Errorf("%s: at %s the rest branch %q would be negative; the other branches leave at most %s",
 				place, s.High, engine.BranchTitle(n, s.rest), limit)
 		}
