@@ -248,6 +248,9 @@ func TestParseInput(t *testing.T) {
 func withVariables(seed uint64, n, k int) *engine.Project {
 	rng := rand.New(rand.NewPCG(seed, 7))
 	p := enginetest.RandomProject(rng, enginetest.Options{Nodes: n, MaxBranches: 3, UseCash: true, UseRest: true})
+	for len(p.Nodes()) < n*9/10 { // the generator can stop early when every branch ends; draw again
+		p = enginetest.RandomProject(rng, enginetest.Options{Nodes: n, MaxBranches: 3, UseCash: true, UseRest: true})
+	}
 	for i := 0; i < k; i++ {
 		base := 50 + rng.IntN(400)
 		p.Variables = append(p.Variables, &engine.Variable{Name: fmt.Sprintf("v%d", i+1), Value: fmt.Sprint(base),
