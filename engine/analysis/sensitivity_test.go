@@ -15,7 +15,9 @@ import (
 	"github.com/ramify-app/ramify/engine/enginetest"
 )
 
-func end(id, payoff string) *engine.Node { return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff} }
+func end(id, payoff string) *engine.Node {
+	return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff}
+}
 
 // linearPair builds a decision between two gambles whose values are a + b·p and
 // c + d·p in the variable p: each alternative pays its "p" end with probability p
