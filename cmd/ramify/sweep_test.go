@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"encoding/json"
 	"os"
 	"path/filepath"
@@ -15,12 +14,6 @@ import (
 )
 
 const demoFile = "../../assets/demos/chiller-cover.ramify.json"
-
-func runCLI(args ...string) (int, string, string) {
-	var out, errOut bytes.Buffer
-	code := run(args, &out, &errOut)
-	return code, out.String(), errOut.String()
-}
 
 func TestSweepJSONGivesExactBreakEvens(t *testing.T) {
 	code, out, stderr := runCLI("sweep", demoFile, "--field", "delivery:Late:probability", "--json")
