@@ -21,15 +21,26 @@ const noteSamples = 41
 // It is meant to run after every edit: the tree is compiled once into the float
 // evaluator and each probability only re-rolls the path from its chance node up
 // to the decision. The figures are float estimates for display; the one-way
-// sweep reports exact break-evens. p is evaluated here (use it on one goroutine).
+// sweep reports exact break-evens. p itself is only read (it is cloned).
 func BreakEvenNotes(p *engine.Project, r *engine.Result) map[*engine.Node][]string {
 	notes := map[*engine.Node][]string{}
 	if r == nil || !r.Valid() || p.Root == nil {
 		return notes
 	}
-	m, err := engine.CompileFast(p)
+	// Work on a clone so the caller's project is not even re-indexed; the
+	// clone's preorder matches p's, which maps the notes back.
+	clone := p.Clone()
+	m, err := engine.CompileFast(clone)
 	if err != nil {
 		return notes
+	}
+	original := map[*engine.Node]*engine.Node{}
+	pn, cn := p.Nodes(), clone.Nodes()
+	if len(pn) != len(cn) {
+		return notes
+	}
+	for i := range cn {
+		original[cn[i]] = pn[i]
 	}
 	kinds, first, count, child := m.Kinds(), m.First(), m.Count(), m.Child()
 	nodes := m.Nodes()
@@ -74,7 +85,8 @@ func BreakEvenNotes(p *engine.Project, r *engine.Result) map[*engine.Node][]stri
 			for _, f := range flips {
 				parts = append(parts, formatShare(f))
 			}
-			notes[n.Branches[b].To] = append(notes[n.Branches[b].To], "choice flips at "+strings.Join(parts, " and "))
+			key := original[n.Branches[b].To]
+			notes[key] = append(notes[key], "choice flips at "+strings.Join(parts, " and "))
 		}
 	}
 	return notes

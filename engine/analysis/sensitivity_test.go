@@ -401,7 +401,12 @@ func TestBreakEvenNotesMatchExactSweeps(t *testing.T) {
 	p, err := engine.Load("../../assets/demos/chiller-cover.ramify.json")
 	require.NoError(t, err)
 	r := evaluated(t, p)
+	before, err := engine.Marshal(p)
+	require.NoError(t, err)
 	notes := BreakEvenNotes(p, r)
+	after, err := engine.Marshal(p)
+	require.NoError(t, err)
+	assert.Equal(t, string(before), string(after))
 	for _, tc := range []struct {
 		node   string
 		branch int
