@@ -309,7 +309,15 @@ func TestSweepBreakEvensOnRandomTreesAreConfirmedExactly(t *testing.T) {
 func TestTornadoEndPointsEqualFullEvaluations(t *testing.T) {
 	demo, err := engine.Load("../../assets/demos/chiller-cover.ramify.json")
 	require.NoError(t, err)
-	for name, p := range map[string]*engine.Project{"demo": demo, "random": withVariables(3, 200, 8)} {
+	risky := withVariables(4, 200, 8)
+	risky.Risk = engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "3000"}
+	riskyTolerance := withVariables(5, 200, 8)
+	riskyTolerance.Risk = engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "v2 * 10"}
+	chained := withVariables(6, 200, 8)
+	chained.Variables[3].Value = "v1 / 2 + 40" // v1 reaches v4's uses too
+	projects := map[string]*engine.Project{"demo": demo, "random": withVariables(3, 200, 8), "risk attitude": risky,
+		"tolerance from a variable": riskyTolerance, "variable feeding a variable": chained}
+	for name, p := range projects {
 		t.Run(name, func(t *testing.T) {
 			r := evaluated(t, p)
 			tor, err := Tornado(context.Background(), p, r)

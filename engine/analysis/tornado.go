@@ -104,7 +104,7 @@ func Tornado(ctx context.Context, p *engine.Project, r *engine.Result) (*Tornado
 		fast = append(fast, fe)
 	}
 	settings = kept
-	bars, err := exactEnds(ctx, p, settings, res.Decision)
+	bars, err := exactEnds(ctx, p, r, settings, res.Decision, res.BaseChoice)
 	if err != nil {
 		return nil, err
 	}
@@ -126,11 +126,13 @@ func Tornado(ctx context.Context, p *engine.Project, r *engine.Result) (*Tornado
 	return res, nil
 }
 
-// exactEnds evaluates each variable at its low and high with the exact engine,
-// on two clones in parallel.
-func exactEnds(ctx context.Context, p *engine.Project, settings []*Setting, dec *engine.Node) ([]TornadoBar, error) {
+// exactEnds evaluates each variable at its low and high with the exact engine
+// (on reduced copies, see tornado_prune.go), on two goroutines.
+func exactEnds(ctx context.Context, p *engine.Project, r *engine.Result, settings []*Setting, dec *engine.Node, baseChoice int) ([]TornadoBar, error) {
 	bars := make([]TornadoBar, len(settings))
 	errs := make([]error, len(settings))
+	pr := newPruner(p, r)
+	base := r.DisplayValue(p.Root)
 	workers := 2
 	if len(settings) < workers {
 		workers = len(settings)
@@ -140,35 +142,38 @@ func exactEnds(ctx context.Context, p *engine.Project, settings []*Setting, dec 
 		wg.Add(1)
 		go func(w int) {
 			defer wg.Done()
-			clone := p.Clone()
-			var cdec *engine.Node
-			if dec != nil {
-				cdec = clone.FindNode(dec.ID)
-			}
 			for i := w; i < len(settings); i += workers {
 				if ctx.Err() != nil {
 					errs[i] = ctx.Err()
 					return
 				}
 				s := settings[i]
-				v := clone.Variable(s.Input.Variable)
-				saved := v.Value
-				b := TornadoBar{Variable: s.Input.Variable, Low: s.Low, High: s.High, Base: s.Base, ChoiceLow: -1, ChoiceHigh: -1}
-				for end, x := range []decimal.Decimal{s.Low, s.High} {
-					v.Value = x.String()
-					r := engine.Evaluate(clone)
-					if !r.Valid() {
-						errs[i] = fmt.Errorf("at %s = %s: %s", s.Input, x, r.Problems[0].Msg)
-						break
+				b := TornadoBar{Variable: s.Input.Variable, Low: s.Low, High: s.High, Base: s.Base,
+					AtLow: base, AtHigh: base, ChoiceLow: baseChoice, ChoiceHigh: baseChoice}
+				if c := pr.project(s.Input.Variable); c != nil {
+					var cdec *engine.Node
+					if dec != nil {
+						cdec = c.FindNode(dec.ID)
 					}
-					val, choice := r.DisplayValue(clone.Root), r.Choice(cdec)
-					if end == 0 {
-						b.AtLow, b.ChoiceLow = val, choice
-					} else {
-						b.AtHigh, b.ChoiceHigh = val, choice
+					v := c.Variable(s.Input.Variable)
+					for end, x := range []decimal.Decimal{s.Low, s.High} {
+						v.Value = x.String()
+						cr := engine.Evaluate(c)
+						if !cr.Valid() {
+							errs[i] = fmt.Errorf("at %s = %s: %s", s.Input, x, cr.Problems[0].Msg)
+							break
+						}
+						val, choice := cr.DisplayValue(c.Root), baseChoice
+						if cdec != nil {
+							choice = cr.Choice(cdec)
+						}
+						if end == 0 {
+							b.AtLow, b.ChoiceLow = val, choice
+						} else {
+							b.AtHigh, b.ChoiceHigh = val, choice
+						}
 					}
 				}
-				v.Value = saved
 				b.Swing = b.AtHigh.Sub(b.AtLow).Abs()
 				bars[i] = b
 			}
