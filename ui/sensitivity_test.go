@@ -25,13 +25,17 @@ type sensHost struct {
 	errs []error
 }
 
-func (h *sensHost) Window() fyne.Window             { return h.win }
-func (h *sensHost) Project() *engine.Project        { return h.p }
-func (h *sensHost) Result() *engine.Result          { return h.r }
-func (h *sensHost) Apply(c engine.Command) error    { return nil }
-func (h *sensHost) SelectedNode() *engine.Node      { return nil }
-func (h *sensHost) SelectNode(*engine.Node)         {}
-func (h *sensHost) ShowError(title string, e error) { h.mu.Lock(); h.errs = append(h.errs, e); h.mu.Unlock() }
+func (h *sensHost) Window() fyne.Window          { return h.win }
+func (h *sensHost) Project() *engine.Project     { return h.p }
+func (h *sensHost) Result() *engine.Result       { return h.r }
+func (h *sensHost) Apply(c engine.Command) error { return nil }
+func (h *sensHost) SelectedNode() *engine.Node   { return nil }
+func (h *sensHost) SelectNode(*engine.Node)      {}
+func (h *sensHost) ShowError(title string, e error) {
+	h.mu.Lock()
+	h.errs = append(h.errs, e)
+	h.mu.Unlock()
+}
 
 // viewHost also takes canvas view options.
 type viewHost struct {
@@ -39,7 +43,7 @@ type viewHost struct {
 	opts canvas.Options
 }
 
-func (h *viewHost) ViewOptions() canvas.Options      { return h.opts }
+func (h *viewHost) ViewOptions() canvas.Options     { return h.opts }
 func (h *viewHost) SetViewOptions(o canvas.Options) { h.opts = o }
 
 func demoHost(t *testing.T) *sensHost {

@@ -3,6 +3,7 @@ package analysis
 import (
 	"context"
 	"testing"
+	"time"
 
 	"github.com/ramify-app/ramify/engine"
 )
@@ -17,6 +18,7 @@ func BenchmarkTornado50VarsOn1000Nodes(b *testing.B) {
 		b.Fatal(r.Problems)
 	}
 	b.ResetTimer()
+	defer reportCPU(b, processCPU())
 	for b.Loop() {
 		tor, err := Tornado(context.Background(), p, r)
 		if err != nil || len(tor.Bars) != 50 {
@@ -32,6 +34,7 @@ func BenchmarkGrid100x100On1000NodesTwoWorkers(b *testing.B) {
 		b.Fatal(r.Problems)
 	}
 	b.ResetTimer()
+	defer reportCPU(b, processCPU())
 	for b.Loop() {
 		if _, err := Regions(context.Background(), p, r, VariableInput("v1"), VariableInput("v2"), RegionOptions{Steps: 100, Workers: 2}); err != nil {
 			b.Fatal(err)
@@ -43,6 +46,7 @@ func BenchmarkBreakEvenNotesOn1000Nodes(b *testing.B) {
 	p := withVariables(13, 1000, 0)
 	r := engine.Evaluate(p)
 	b.ResetTimer()
+	defer reportCPU(b, processCPU())
 	for b.Loop() {
 		BreakEvenNotes(p, r)
 	}
@@ -52,9 +56,18 @@ func BenchmarkSweep50StepsOn1000Nodes(b *testing.B) {
 	p := withVariables(14, 1000, 4)
 	r := engine.Evaluate(p)
 	b.ResetTimer()
+	defer reportCPU(b, processCPU())
 	for b.Loop() {
 		if _, err := Sweep(context.Background(), p, r, VariableInput("v1"), SweepOptions{}); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// reportCPU adds the CPU time per operation (all goroutines), a figure that does
+// not grow when other processes share the machine.
+func reportCPU(b *testing.B, start time.Duration) {
+	if b.N > 0 && start > 0 {
+		b.ReportMetric(float64(processCPU()-start)/float64(time.Millisecond)/float64(b.N), "cpu-ms/op")
 	}
 }
