@@ -215,7 +215,7 @@ func (t *TornadoResult) Chart() (*plot.Plot, error) {
 			}
 			lab.TextStyle[0].Font.Size = vg.Points(8)
 			lab.TextStyle[0].YAlign = draw.YCenter
-			if x < base {
+			if labelLeft(end, b.AtLow.InexactFloat64(), b.AtHigh.InexactFloat64(), base) {
 				lab.TextStyle[0].XAlign = draw.XRight
 				lab.Offset.X = vg.Points(-3)
 			} else {
@@ -404,4 +404,25 @@ func (numberTicks) Ticks(min, max float64) []plot.Tick {
 		}
 	}
 	return ticks
+}
+
+// labelLeft says whether a tornado end label goes left of its bar end: beside
+// the bar's outer end, and for an end at the base value on the side away from
+// the other end (both at base: low left, high right).
+func labelLeft(end int, low, high, base float64) bool {
+	this, other := low, high
+	if end == 1 {
+		this, other = high, low
+	}
+	switch {
+	case this < base:
+		return true
+	case this > base:
+		return false
+	case other > base:
+		return true
+	case other < base:
+		return false
+	}
+	return end == 0
 }
