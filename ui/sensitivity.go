@@ -194,7 +194,7 @@ type chartBox struct {
 }
 
 // Chart pictures are rendered at this size and scaled to fit the panel.
-const chartPxW, chartPxH = 960, 620
+const chartPxW, chartPxH = 700, 450
 
 func newChartBox() *chartBox {
 	img := fcanvas.NewImageFromImage(image.NewRGBA(image.Rect(0, 0, 1, 1)))
@@ -264,7 +264,7 @@ type textTable struct {
 	table *widget.Table
 }
 
-func newTextTable(widths ...float32) *textTable {
+func newTextTable() *textTable {
 	t := &textTable{}
 	t.table = widget.NewTable(
 		func() (int, int) {
@@ -281,14 +281,25 @@ func newTextTable(widths ...float32) *textTable {
 				l.TextStyle.Bold = id.Row == 0
 			}
 		})
-	for i, w := range widths {
-		t.table.SetColumnWidth(i, w)
-	}
 	return t
 }
 
 func (t *textTable) set(rows [][]string) {
 	t.rows = rows
+	// Columns as wide as their longest text (header and the first rows), within limits.
+	if len(rows) > 0 {
+		for c := range rows[0] {
+			longest := 0
+			for r := 0; r < len(rows) && r < 50; r++ {
+				if c < len(rows[r]) && len([]rune(rows[r][c])) > longest {
+					longest = len([]rune(rows[r][c]))
+				}
+			}
+			w := float32(longest)*7.5 + 24
+			w = max(60, min(w, 300))
+			t.table.SetColumnWidth(c, w)
+		}
+	}
 	t.table.Refresh()
 }
 

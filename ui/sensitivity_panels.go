@@ -37,7 +37,7 @@ type sweepPanel struct {
 }
 
 func newSweepPanel(h Host) *sweepPanel {
-	sp := &sweepPanel{h: h, chart: newChartBox(), table: newTextTable(110, 120, 120, 120)}
+	sp := &sweepPanel{h: h, chart: newChartBox(), table: newTextTable()}
 	sp.input = widget.NewSelect(nil, nil)
 	sp.input.PlaceHolder = "Input to vary"
 	sp.from, sp.to = widget.NewEntry(), widget.NewEntry()
@@ -200,7 +200,7 @@ type tornadoPanel struct {
 }
 
 func newTornadoPanel(h Host) *tornadoPanel {
-	tp := &tornadoPanel{h: h, chart: newChartBox(), table: newTextTable(120, 80, 80, 110, 110, 100, 60)}
+	tp := &tornadoPanel{h: h, chart: newChartBox(), table: newTextTable()}
 	tp.run = widget.NewButton("Run", tp.Run)
 	tp.status = widget.NewLabel("Every variable with a low and a high gets a bar. Press Run.")
 	tp.status.Wrapping = fyne.TextWrapWord
@@ -309,7 +309,7 @@ type regionsPanel struct {
 }
 
 func newRegionsPanel(h Host) *regionsPanel {
-	rp := &regionsPanel{h: h, chart: newChartBox(), table: newTextTable(260, 80, 80)}
+	rp := &regionsPanel{h: h, chart: newChartBox(), table: newTextTable()}
 	rp.x, rp.y = widget.NewSelect(nil, nil), widget.NewSelect(nil, nil)
 	rp.x.PlaceHolder, rp.y.PlaceHolder = "Across", "Up"
 	rp.xFrom, rp.xTo, rp.yFrom, rp.yTo = widget.NewEntry(), widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
