@@ -2,4 +2,4 @@ package analysis
 
 import "github.com/shopspring/decimal"
 
-func d(s string) decimal.Decimal { return decimal.RequireFromString(s) }
+func sdec(s string) decimal.Decimal { return decimal.RequireFromString(s) }

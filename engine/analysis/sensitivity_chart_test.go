@@ -18,8 +18,8 @@ import (
 func TestSensitivityChartsSaveInEveryFormat(t *testing.T) {
 	p, err := engine.Load("../../assets/demos/chiller-cover.ramify.json")
 	require.NoError(t, err)
-	r := evaluated(t, p)
-	sw, err := Sweep(context.Background(), p, r, VariableInput("p_holds"), SweepOptions{Range: &Range{Low: d("0"), High: d("1")}})
+	r := sensEvaluated(t, p)
+	sw, err := Sweep(context.Background(), p, r, VariableInput("p_holds"), SweepOptions{Range: &Range{Low: sdec("0"), High: sdec("1")}})
 	require.NoError(t, err)
 	tor, err := Tornado(context.Background(), p, r)
 	require.NoError(t, err)

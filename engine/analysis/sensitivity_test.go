@@ -15,7 +15,7 @@ import (
 	"github.com/ramify-app/ramify/engine/enginetest"
 )
 
-func end(id, payoff string) *engine.Node {
+func sensEnd(id, payoff string) *engine.Node {
 	return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff}
 }
 
@@ -25,8 +25,8 @@ func end(id, payoff string) *engine.Node {
 func linearPair(obj engine.Objective, a, b, c, dd int64) *engine.Project {
 	gamble := func(id string, base, slope int64) *engine.Node {
 		return &engine.Node{ID: id, Kind: engine.Chance, Branches: []*engine.Branch{
-			{Label: "yes", Probability: "p", To: end(id+"-yes", fmt.Sprint(base+slope))},
-			{Label: "no", Probability: "rest", To: end(id+"-no", fmt.Sprint(base))},
+			{Label: "yes", Probability: "p", To: sensEnd(id+"-yes", fmt.Sprint(base+slope))},
+			{Label: "no", Probability: "rest", To: sensEnd(id+"-no", fmt.Sprint(base))},
 		}}
 	}
 	return &engine.Project{Objective: obj, Currency: "EUR",
@@ -37,7 +37,7 @@ func linearPair(obj engine.Objective, a, b, c, dd int64) *engine.Project {
 		}}}
 }
 
-func evaluated(t *testing.T, p *engine.Project) *engine.Result {
+func sensEvaluated(t *testing.T, p *engine.Project) *engine.Result {
 	t.Helper()
 	r := engine.Evaluate(p)
 	require.True(t, r.Valid(), "%v", r.Problems)
@@ -61,14 +61,14 @@ func TestLinearBreakEvenEqualsClosedForm(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			p := linearPair(tc.obj, tc.a, tc.b, tc.c, tc.d)
-			r := evaluated(t, p)
+			r := sensEvaluated(t, p)
 			sw, err := Sweep(context.Background(), p, r, VariableInput("p"), SweepOptions{Steps: tc.steps})
 			require.NoError(t, err)
 			require.Len(t, sw.BreakEvens, 1)
 			be := sw.BreakEvens[0]
 			want := engine.Divide(decimal.NewFromInt(tc.c-tc.a), decimal.NewFromInt(tc.b-tc.d))
 			assert.True(t, be.Exact, "linear values must be solved exactly")
-			assert.True(t, be.At.Sub(want).Abs().LessThan(d("1e-25")), "break-even %s, closed form %s", be.At, want)
+			assert.True(t, be.At.Sub(want).Abs().LessThan(sdec("1e-25")), "break-even %s, closed form %s", be.At, want)
 			// The sweep's winner changes exactly there.
 			for k, x := range sw.X {
 				switch {
@@ -87,19 +87,19 @@ func TestBreakEvenOnATreeFieldUsesTheRestRule(t *testing.T) {
 	// A sure 180 against a gamble paying 400 with probability q, else 100:
 	// 100 + 300q = 180 at q = 80/300 (closed form, common practice).
 	p := &engine.Project{Objective: engine.Maximize, Root: &engine.Node{ID: "root", Kind: engine.Decision, Branches: []*engine.Branch{
-		{Label: "sure", To: end("s", "180")},
+		{Label: "sure", To: sensEnd("s", "180")},
 		{Label: "gamble", To: &engine.Node{ID: "g", Kind: engine.Chance, Branches: []*engine.Branch{
-			{Label: "win", Probability: "0.5", To: end("w", "400")},
-			{Label: "lose", Probability: "rest", To: end("l", "100")},
+			{Label: "win", Probability: "0.5", To: sensEnd("w", "400")},
+			{Label: "lose", Probability: "rest", To: sensEnd("l", "100")},
 		}}},
 	}}}
-	r := evaluated(t, p)
+	r := sensEvaluated(t, p)
 	sw, err := Sweep(context.Background(), p, r, FieldInput("g", 0, FieldProbability), SweepOptions{})
 	require.NoError(t, err)
 	assert.Equal(t, RuleRest, sw.Setting.Rule)
 	require.Len(t, sw.BreakEvens, 1)
-	want := engine.Divide(d("80"), d("300"))
-	assert.True(t, sw.BreakEvens[0].At.Sub(want).Abs().LessThan(d("1e-25")), "got %s want %s", sw.BreakEvens[0].At, want)
+	want := engine.Divide(sdec("80"), sdec("300"))
+	assert.True(t, sw.BreakEvens[0].At.Sub(want).Abs().LessThan(sdec("1e-25")), "got %s want %s", sw.BreakEvens[0].At, want)
 	assert.Equal(t, 0, sw.BreakEvens[0].From)
 	assert.Equal(t, 1, sw.BreakEvens[0].To)
 	assert.Equal(t, "0.5", p.Root.Branches[1].To.Branches[0].Probability, "the project is not changed")
@@ -114,13 +114,13 @@ func TestNonlinearBreakEvenIsBisectedAndConfirmed(t *testing.T) {
 	p := &engine.Project{Objective: engine.Maximize, Risk: engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "500"},
 		Variables: []*engine.Variable{{Name: "p", Value: "0.5", Low: "0", High: "1"}},
 		Root: &engine.Node{ID: "root", Kind: engine.Decision, Branches: []*engine.Branch{
-			{Label: "sure", To: end("s", "400")},
+			{Label: "sure", To: sensEnd("s", "400")},
 			{Label: "gamble", To: &engine.Node{ID: "g", Kind: engine.Chance, Branches: []*engine.Branch{
-				{Label: "win", Probability: "p", To: end("w", "1000")},
-				{Label: "lose", Probability: "rest", To: end("l", "0")},
+				{Label: "win", Probability: "p", To: sensEnd("w", "1000")},
+				{Label: "lose", Probability: "rest", To: sensEnd("l", "0")},
 			}}},
 		}}}
-	r := evaluated(t, p)
+	r := sensEvaluated(t, p)
 	require.True(t, r.RiskActive())
 	sw, err := Sweep(context.Background(), p, r, VariableInput("p"), SweepOptions{Steps: 20})
 	require.NoError(t, err)
@@ -131,7 +131,7 @@ func TestNonlinearBreakEvenIsBisectedAndConfirmed(t *testing.T) {
 	assert.InDelta(t, want, be.At.InexactFloat64(), 1e-9)
 	// The exact engine confirms the change on either side of the reported point.
 	ex := newExact(p, sw.Setting)
-	eps := be.At.Mul(d("1e-10"))
+	eps := be.At.Mul(sdec("1e-10"))
 	below, err := ex.eval(be.At.Sub(eps))
 	require.NoError(t, err)
 	above, err := ex.eval(be.At.Add(eps))
@@ -145,25 +145,25 @@ func TestVaryingOneProbabilityKeepsADistribution(t *testing.T) {
 	// others 0.3 and 0.5 share the remaining 0.4 as 0.15 and 0.25 (hand-derived).
 	p := &engine.Project{Objective: engine.Maximize, Root: &engine.Node{ID: "root", Kind: engine.Decision, Branches: []*engine.Branch{
 		{Label: "go", To: &engine.Node{ID: "c", Kind: engine.Chance, Branches: []*engine.Branch{
-			{Label: "x", Probability: "0.2", To: end("x", "10")},
-			{Label: "y", Probability: "0.3", To: end("y", "20")},
-			{Label: "z", Probability: "0.5", To: end("z", "30")},
+			{Label: "x", Probability: "0.2", To: sensEnd("x", "10")},
+			{Label: "y", Probability: "0.3", To: sensEnd("y", "20")},
+			{Label: "z", Probability: "0.5", To: sensEnd("z", "30")},
 		}}},
-		{Label: "stop", To: end("s", "0")},
+		{Label: "stop", To: sensEnd("s", "0")},
 	}}}
-	r := evaluated(t, p)
+	r := sensEvaluated(t, p)
 	s, err := Prepare(p, r, FieldInput("c", 0, FieldProbability), nil)
 	require.NoError(t, err)
 	assert.Equal(t, RuleScale, s.Rule)
 	ex := newExact(p, s)
-	got, err := ex.eval(d("0.6"))
+	got, err := ex.eval(sdec("0.6"))
 	require.NoError(t, err)
 	c := ex.node("c")
 	for i, want := range []string{"0.6", "0.15", "0.25"} {
-		assert.True(t, got.Probability(c, i).Equal(d(want)), "branch %d: %s", i, got.Probability(c, i))
+		assert.True(t, got.Probability(c, i).Equal(sdec(want)), "branch %d: %s", i, got.Probability(c, i))
 	}
 	// Value = 0.6·10 + 0.15·20 + 0.25·30 = 16.5
-	assert.True(t, got.ValueOf(c).Equal(d("16.5")))
+	assert.True(t, got.ValueOf(c).Equal(sdec("16.5")))
 }
 
 func TestBadInputNamesThePlaceAndLeavesTheProjectAlone(t *testing.T) {
@@ -176,14 +176,14 @@ func TestBadInputNamesThePlaceAndLeavesTheProjectAlone(t *testing.T) {
 			},
 			Root: &engine.Node{ID: "root", Kind: engine.Decision, Branches: []*engine.Branch{
 				{Label: "go", To: &engine.Node{ID: "c", Kind: engine.Chance, Branches: []*engine.Branch{
-					{Label: "x", Probability: "q", To: end("x", "norange")},
-					{Label: "y", Probability: "0.3", To: end("y", "20")},
-					{Label: "z", Probability: "rest", To: end("z", "30")},
+					{Label: "x", Probability: "q", To: sensEnd("x", "norange")},
+					{Label: "y", Probability: "0.3", To: sensEnd("y", "20")},
+					{Label: "z", Probability: "rest", To: sensEnd("z", "30")},
 				}}},
-				{Label: "stop", To: end("s", "upside")},
+				{Label: "stop", To: sensEnd("s", "upside")},
 			}}}
 	}
-	rng := func(lo, hi string) *Range { return &Range{Low: d(lo), High: d(hi)} }
+	rng := func(lo, hi string) *Range { return &Range{Low: sdec(lo), High: sdec(hi)} }
 	tests := []struct {
 		name string
 		in   Input
@@ -208,7 +208,7 @@ func TestBadInputNamesThePlaceAndLeavesTheProjectAlone(t *testing.T) {
 			p := build()
 			before, err := engine.Marshal(p)
 			require.NoError(t, err)
-			r := evaluated(t, p)
+			r := sensEvaluated(t, p)
 			_, err = Sweep(context.Background(), p, r, tc.in, SweepOptions{Range: tc.rng})
 			require.Error(t, err)
 			assert.Contains(t, err.Error(), tc.want)
@@ -277,14 +277,14 @@ func TestSweepBreakEvensOnRandomTreesAreConfirmedExactly(t *testing.T) {
 			p = enginetest.RandomProject(rand.New(rand.NewPCG(seed, 3)), enginetest.Options{Nodes: 60, UseVars: true, UseCash: true})
 			names = []string{"a", "q"}
 		}
-		r := evaluated(t, p)
+		r := sensEvaluated(t, p)
 		for _, name := range names {
 			sw, err := Sweep(context.Background(), p, r, VariableInput(name), SweepOptions{Steps: 30})
 			require.NoError(t, err, "seed %d", seed)
 			ex := newExact(p, sw.Setting)
 			root := ex.node(p.Root.ID)
 			for _, be := range sw.BreakEvens {
-				eps := decimal.Max(be.At.Abs(), d("1")).Mul(d("1e-9"))
+				eps := decimal.Max(be.At.Abs(), sdec("1")).Mul(sdec("1e-9"))
 				below, err := ex.eval(be.At.Sub(eps))
 				require.NoError(t, err)
 				above, err := ex.eval(be.At.Add(eps))
@@ -319,7 +319,7 @@ func TestTornadoEndPointsEqualFullEvaluations(t *testing.T) {
 		"tolerance from a variable": riskyTolerance, "variable feeding a variable": chained}
 	for name, p := range projects {
 		t.Run(name, func(t *testing.T) {
-			r := evaluated(t, p)
+			r := sensEvaluated(t, p)
 			tor, err := Tornado(context.Background(), p, r)
 			require.NoError(t, err)
 			require.NotEmpty(t, tor.Bars)
@@ -350,20 +350,20 @@ func TestTornadoEndPointsEqualFullEvaluations(t *testing.T) {
 func TestTornadoOfTheDemoMarksFlips(t *testing.T) {
 	p, err := engine.Load("../../assets/demos/chiller-cover.ramify.json")
 	require.NoError(t, err)
-	r := evaluated(t, p)
+	r := sensEvaluated(t, p)
 	tor, err := Tornado(context.Background(), p, r)
 	require.NoError(t, err)
 	// install_cost is paid on every path, so it moves the root cost one for one
 	// (swing 265000 − 220000) and can never change the choice (hand-derived).
 	require.Equal(t, "install_cost", tor.Bars[0].Variable)
-	assert.True(t, tor.Bars[0].Swing.Equal(d("45000")))
+	assert.True(t, tor.Bars[0].Swing.Equal(sdec("45000")))
 	assert.False(t, tor.Bars[0].Flips)
 }
 
 func TestTwoWayMapAgreesWithOneWaySweeps(t *testing.T) {
 	for seed := uint64(1); seed <= 6; seed++ {
 		p := withVariables(seed, 80, 3)
-		r := evaluated(t, p)
+		r := sensEvaluated(t, p)
 		// Ranges symmetric about base, with an odd number of points, put the base on the grid.
 		const steps = 21
 		around := func(name string, h int64) *Range {
@@ -390,7 +390,7 @@ func TestTwoWayMapAgreesWithOneWaySweeps(t *testing.T) {
 
 func TestTwoWayMapCancels(t *testing.T) {
 	p := withVariables(5, 400, 3)
-	r := evaluated(t, p)
+	r := sensEvaluated(t, p)
 	ctx, cancel := context.WithCancel(context.Background())
 	calls := 0
 	_, err := Regions(ctx, p, r, VariableInput("v1"), VariableInput("v2"), RegionOptions{Steps: 200, Workers: 2,
@@ -408,7 +408,7 @@ func TestTwoWayMapCancels(t *testing.T) {
 func TestBreakEvenNotesMatchExactSweeps(t *testing.T) {
 	p, err := engine.Load("../../assets/demos/chiller-cover.ramify.json")
 	require.NoError(t, err)
-	r := evaluated(t, p)
+	r := sensEvaluated(t, p)
 	before, err := engine.Marshal(p)
 	require.NoError(t, err)
 	notes := BreakEvenNotes(p, r)
@@ -442,7 +442,7 @@ func TestBreakEvenNotesMatchExactSweeps(t *testing.T) {
 func TestBreakEvenNotesAgreeWithFullRollsOnRandomTrees(t *testing.T) {
 	for seed := uint64(1); seed <= 8; seed++ {
 		p := withVariables(seed, 120, 0)
-		r := evaluated(t, p)
+		r := sensEvaluated(t, p)
 		notes := BreakEvenNotes(p, r)
 		// Every note's node: check with the full float roll that the choice of
 		// the nearest decision differs a little below and a little above.
