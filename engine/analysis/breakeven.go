@@ -31,7 +31,7 @@ var bisectRel = decimal.New(1, -12)
 // formula divisions keep engine.DivisionDigits digits, everything else is exact.
 var linearTol = decimal.New(1, -20)
 
-var half = decimal.New(5, -1)
+var halfDec = decimal.New(5, -1)
 
 // crossingFinder locates break-evens with the exact engine on a private clone.
 type crossingFinder struct {
@@ -109,7 +109,7 @@ func (f *crossingFinder) first(lo, hi decimal.Decimal, a, b int) (BreakEven, dec
 		if width.LessThanOrEqual(scale.Mul(bisectRel)) || width.LessThanOrEqual(floor) {
 			break
 		}
-		m := l.Add(h).Mul(half)
+		m := l.Add(h).Mul(halfDec)
 		_, w, err := f.at(m)
 		if err != nil {
 			return BreakEven{}, lo, a, err
@@ -120,7 +120,7 @@ func (f *crossingFinder) first(lo, hi decimal.Decimal, a, b int) (BreakEven, dec
 			h, wh = m, w
 		}
 	}
-	at := l.Add(h).Mul(half)
+	at := l.Add(h).Mul(halfDec)
 	if d := at.NumDigits(); d > 16 {
 		if r := at.Round(-at.Exponent() - int32(d-16)); !r.LessThan(l) && !r.GreaterThan(h) {
 			at = r
@@ -138,7 +138,7 @@ func (f *crossingFinder) first(lo, hi decimal.Decimal, a, b int) (BreakEven, dec
 // arithmetic. ok is false when the values are not linear there or the solution
 // is not a change of the best alternative (a third one is better at it).
 func (f *crossingFinder) solveLinear(lo, hi decimal.Decimal, a, b int) (BreakEven, bool, error) {
-	mid := lo.Add(hi).Mul(half)
+	mid := lo.Add(hi).Mul(halfDec)
 	vLo, _, err := f.at(lo)
 	if err != nil {
 		return BreakEven{}, false, err
@@ -152,7 +152,7 @@ func (f *crossingFinder) solveLinear(lo, hi decimal.Decimal, a, b int) (BreakEve
 		return BreakEven{}, false, err
 	}
 	for _, k := range []int{a, b} {
-		if !nearlyEqual(vMid[k], vLo[k].Add(vHi[k]).Mul(half)) {
+		if !nearlyEqual(vMid[k], vLo[k].Add(vHi[k]).Mul(halfDec)) {
 			return BreakEven{}, false, nil
 		}
 	}
