@@ -55,11 +55,11 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
-	xr, code := rangeFlags("ramify regions (x)", *xFrom, *xTo, r, stderr)
+	xr, code := sensRange("ramify regions (x)", *xFrom, *xTo, r, stderr)
 	if code != exitOK {
 		return code
 	}
-	yr, code := rangeFlags("ramify regions (y)", *yFrom, *yTo, r, stderr)
+	yr, code := sensRange("ramify regions (y)", *yFrom, *yTo, r, stderr)
 	if code != exitOK {
 		return code
 	}
@@ -70,13 +70,13 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		return exitInvalid
 	}
 	if *out != "" {
-		if code := saveChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
 			return code
 		}
 	}
 	switch {
 	case *asJSON:
-		return printJSON(fs.Name(), stdout, stderr, res.Doc())
+		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
 	case *asCSV:
 		if err := res.WriteCSV(stdout); err != nil {
 			fmt.Fprintln(stderr, "ramify regions:", err)

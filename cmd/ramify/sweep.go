@@ -33,7 +33,7 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	if !ok {
 		return exitUsage
 	}
-	in, code := inputFlag(fs.Name(), *varName, *field, stderr)
+	in, code := sensInput(fs.Name(), *varName, *field, stderr)
 	if code != exitOK {
 		return code
 	}
@@ -48,7 +48,7 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
-	rng, code := rangeFlags(fs.Name(), *from, *to, r, stderr)
+	rng, code := sensRange(fs.Name(), *from, *to, r, stderr)
 	if code != exitOK {
 		return code
 	}
@@ -58,13 +58,13 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 		return exitInvalid
 	}
 	if *out != "" {
-		if code := saveChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
 			return code
 		}
 	}
 	switch {
 	case *asJSON:
-		return printJSON(fs.Name(), stdout, stderr, res.Doc())
+		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
 	case *asCSV:
 		if err := res.WriteCSV(stdout); err != nil {
 			fmt.Fprintln(stderr, "ramify sweep:", err)
@@ -79,7 +79,7 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 func printSweep(w io.Writer, s *analysis.SweepResult) {
 	set := s.Setting
 	fmt.Fprintf(w, "%s of the alternatives at %q as %s goes from %s to %s (base %s)\n",
-		capitalize(s.ValueWord), engine.NodeTitle(s.Decision), s.InputName, set.Low, set.High, set.Base)
+		sensCapital(s.ValueWord), engine.NodeTitle(s.Decision), s.InputName, set.Low, set.High, set.Base)
 	if set.Rule != "" {
 		fmt.Fprintf(w, "Other branches: %s.\n", set.Rule)
 	}
@@ -112,7 +112,7 @@ func printSweep(w io.Writer, s *analysis.SweepResult) {
 	fmt.Fprintln(w, engine.Caution)
 }
 
-func capitalize(s string) string {
+func sensCapital(s string) string {
 	if s == "" {
 		return s
 	}
@@ -120,7 +120,7 @@ func capitalize(s string) string {
 }
 
 // inputFlag turns --var / --field into one analysis input.
-func inputFlag(cmd, varName, field string, stderr io.Writer) (analysis.Input, int) {
+func sensInput(cmd, varName, field string, stderr io.Writer) (analysis.Input, int) {
 	switch {
 	case varName != "" && field != "":
 		fmt.Fprintf(stderr, "%s: give --var or --field, not both\n", cmd)
@@ -143,7 +143,7 @@ func inputFlag(cmd, varName, field string, stderr io.Writer) (analysis.Input, in
 }
 
 // rangeFlags reads --from/--to (numbers or formulas over the project's variables).
-func rangeFlags(cmd, from, to string, r *engine.Result, stderr io.Writer) (*analysis.Range, int) {
+func sensRange(cmd, from, to string, r *engine.Result, stderr io.Writer) (*analysis.Range, int) {
 	if from == "" && to == "" {
 		return nil, exitOK
 	}
@@ -165,7 +165,7 @@ func rangeFlags(cmd, from, to string, r *engine.Result, stderr io.Writer) (*anal
 	return &analysis.Range{Low: ends[0], High: ends[1]}, exitOK
 }
 
-func printJSON(cmd string, stdout, stderr io.Writer, doc any) int {
+func printSensJSON(cmd string, stdout, stderr io.Writer, doc any) int {
 	enc := json.NewEncoder(stdout)
 	enc.SetIndent("", "  ")
 	if err := enc.Encode(doc); err != nil {

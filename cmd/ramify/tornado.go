@@ -49,13 +49,13 @@ func runTornado(args []string, stdout, stderr io.Writer) int {
 		return exitInvalid
 	}
 	if *out != "" {
-		if code := saveChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
 			return code
 		}
 	}
 	switch {
 	case *asJSON:
-		return printJSON(fs.Name(), stdout, stderr, res.Doc())
+		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
 	case *asCSV:
 		if err := res.WriteCSV(stdout); err != nil {
 			fmt.Fprintln(stderr, "ramify tornado:", err)
@@ -90,7 +90,7 @@ func printTornado(w io.Writer, t *analysis.TornadoResult) {
 }
 
 // saveChart builds a chart and writes it by extension.
-func saveChart(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
+func saveSensChart(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
 	pl, err := build()
 	if err == nil {
 		err = analysis.SaveSensitivityChart(pl, path)
