@@ -81,7 +81,7 @@ func printSweep(w io.Writer, s *analysis.SweepResult) {
 	fmt.Fprintf(w, "%s of the alternatives at %q as %s goes from %s to %s (base %s)\n",
 		sensCapital(s.ValueWord), engine.NodeTitle(s.Decision), s.InputName, set.Low, set.High, set.Base)
 	if set.Rule != "" {
-		fmt.Fprintf(w, "Other branches: %s.\n", set.Rule)
+		fmt.Fprintf(w, "To keep the distribution valid, %s.\n", set.Rule)
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, "Break-evens:")

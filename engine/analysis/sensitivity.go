@@ -112,7 +112,7 @@ type Setting struct {
 }
 
 // Name is a short name for charts and tables: the variable's name, or the
-// branch and field ("On time probability").
+// node, branch and field ("New unit delivery › On time probability").
 func (s *Setting) Name(p *engine.Project) string {
 	if s.Input.IsVariable() {
 		return s.Input.Variable
@@ -124,7 +124,7 @@ func (s *Setting) Name(p *engine.Project) string {
 	if s.Input.Field == FieldPayoff {
 		return engine.NodeTitle(n) + " payoff"
 	}
-	return engine.BranchTitle(n, s.branch) + " " + s.Input.Field
+	return engine.NodeTitle(n) + " › " + engine.BranchTitle(n, s.branch) + " " + s.Input.Field
 }
 
 // BranchIndex is the resolved branch of a probability or cash input, or -1.
