@@ -38,15 +38,32 @@ type crossingFinder struct {
 	ex    *exactModel
 	dec   *engine.Node // the decision in the clone
 	evals int          // exact evaluations made (for tests and reports)
+	memo  map[string]atResult
+}
+
+// atResult is one exact evaluation remembered: the ends of an interval are
+// asked for more than once.
+type atResult struct {
+	vals []decimal.Decimal
+	best int
 }
 
 func newCrossingFinder(p *engine.Project, s *Setting, decisionID string) *crossingFinder {
-	ex := newExact(p, s)
+	return newCrossingFinderOn(p.Clone(), s, decisionID)
+}
+
+// newCrossingFinderOn works on a private copy the caller made (cloned or reduced).
+func newCrossingFinderOn(copy *engine.Project, s *Setting, decisionID string) *crossingFinder {
+	ex := newExactOn(copy, s)
 	return &crossingFinder{ex: ex, dec: ex.node(decisionID)}
 }
 
 // at evaluates exactly at x: the values of the decision's alternatives and the best one.
 func (f *crossingFinder) at(x decimal.Decimal) ([]decimal.Decimal, int, error) {
+	key := x.String()
+	if m, ok := f.memo[key]; ok {
+		return m.vals, m.best, nil
+	}
 	f.evals++
 	r, err := f.ex.eval(x)
 	if err != nil {
@@ -56,6 +73,10 @@ func (f *crossingFinder) at(x decimal.Decimal) ([]decimal.Decimal, int, error) {
 	for i := range vals {
 		vals[i] = r.BranchValue(f.dec, i)
 	}
+	if f.memo == nil || len(f.memo) > 64 {
+		f.memo = map[string]atResult{}
+	}
+	f.memo[key] = atResult{vals, r.Choice(f.dec)}
 	return vals, r.Choice(f.dec), nil
 }
 

@@ -1,8 +1,9 @@
 package analysis
 
 import (
-	"strconv"
 	"strings"
+
+	"github.com/shopspring/decimal"
 
 	"github.com/ramify-app/ramify/engine"
 )
@@ -20,8 +21,8 @@ const noteSamples = 41
 //
 // It is meant to run after every edit: the tree is compiled once into the float
 // evaluator and each probability only re-rolls the path from its chance node up
-// to the decision. The figures are float estimates for display; the one-way
-// sweep reports exact break-evens. p itself is only read (it is cloned).
+// to the decision; each flip found is then located with the exact engine on a
+// copy reduced to the path that can change. p itself is only read.
 func BreakEvenNotes(p *engine.Project, r *engine.Result) map[*engine.Node][]string {
 	notes := map[*engine.Node][]string{}
 	if r == nil || !r.Valid() || p.Root == nil {
@@ -52,6 +53,7 @@ func BreakEvenNotes(p *engine.Project, r *engine.Result) map[*engine.Node][]stri
 			parent[child[k]], parentSlot[child[k]] = int32(i), k
 		}
 	}
+	var pr *pruner // built on the first note, to confirm notes exactly
 	w := &pathRoller{m: m, R: r.Tolerance(), kinds: kinds, first: first, count: count, child: child}
 	if !m.Maximize() {
 		w.sign = -1
@@ -81,9 +83,12 @@ func BreakEvenNotes(p *engine.Project, r *engine.Result) map[*engine.Node][]stri
 			if len(flips) == 0 || n.Branches[b].To == nil {
 				continue
 			}
-			var parts []string
-			for _, f := range flips {
-				parts = append(parts, formatShare(f))
+			if pr == nil {
+				pr = newPruner(p, r)
+			}
+			parts := confirmFlips(p, r, pr, original[n], b, original[nodes[dec]], flips, w.spacing)
+			if len(parts) == 0 {
+				continue
 			}
 			key := original[n.Branches[b].To]
 			notes[key] = append(notes[key], "choice flips at "+strings.Join(parts, " and "))
@@ -92,15 +97,54 @@ func BreakEvenNotes(p *engine.Project, r *engine.Result) map[*engine.Node][]stri
 	return notes
 }
 
-// formatShare prints a probability with two decimals, more when needed to stay off 0 and 1.
-func formatShare(x float64) string {
-	for places := 2; places <= 6; places++ {
-		s := strconv.FormatFloat(x, 'f', places, 64)
-		if s != "0."+strings.Repeat("0", places) && s != "1."+strings.Repeat("0", places) {
-			return s
+// confirmFlips finds each flip exactly: the exact engine, on a copy reduced to
+// the chance node and its ancestors (every other subtree paying its exact base
+// value), locates the change of choice within one sample spacing of the float
+// estimate. Flips the exact engine does not see are dropped.
+// Subtle point: with a risk attitude the end nodes pay the base CE, which is
+// what a decision compares, so the reduced decision chooses as the full one.
+func confirmFlips(p *engine.Project, r *engine.Result, pr *pruner, n *engine.Node, branch int, dec *engine.Node, flips []float64, spacing float64) []string {
+	s, err := prepare(p, r, FieldInput(n.ID, branch, FieldProbability), nil, false)
+	if err != nil {
+		return nil
+	}
+	reduced := pr.reduce(dec, []*engine.Node{n}) // the decision's choice depends only on its subtree
+	if reduced == nil {
+		return nil
+	}
+	f := newCrossingFinderOn(reduced, s, dec.ID)
+	if f.dec == nil {
+		return nil
+	}
+	var out []string
+	seen := map[string]bool{}
+	for _, x := range flips {
+		lo := decimal.Max(s.Low, decimal.NewFromFloat(x-spacing))
+		hi := decimal.Min(s.High, decimal.NewFromFloat(x+spacing))
+		bes, err := f.between(lo, hi)
+		if err != nil {
+			continue
+		}
+		for _, be := range bes {
+			text := formatShare(be.At)
+			if !seen[text] {
+				seen[text] = true
+				out = append(out, text)
+			}
 		}
 	}
-	return strconv.FormatFloat(x, 'g', 6, 64)
+	return out
+}
+
+// formatShare prints a probability with two decimals, more when needed to stay off 0 and 1.
+func formatShare(x decimal.Decimal) string {
+	for places := int32(2); places <= 6; places++ {
+		t := x.StringFixed(places)
+		if t != decimal.Zero.StringFixed(places) && t != decimal.NewFromInt(1).StringFixed(places) {
+			return t
+		}
+	}
+	return x.String()
 }
 
 // pathRoller recomputes the values from one chance node up to a decision with
@@ -115,6 +159,7 @@ type pathRoller struct {
 	path                []pathStep
 	probs               []float64
 	ps, vs              []float64
+	spacing             float64 // distance between samples in the last flips call
 }
 
 // pathStep is one branch on the way up: the node owning it and its slot.
@@ -170,6 +215,7 @@ func (w *pathRoller) flips(n *engine.Node, b int) []float64 {
 		return w.choice()
 	}
 	var out []float64
+	w.spacing = hi / float64(noteSamples-1)
 	prevX := 0.0
 	prev := choiceAt(0)
 	for s := 1; s < noteSamples; s++ {

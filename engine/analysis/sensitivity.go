@@ -371,7 +371,12 @@ type exactModel struct {
 }
 
 func newExact(p *engine.Project, settings ...*Setting) *exactModel {
-	e := &exactModel{clone: p.Clone(), settings: settings}
+	return newExactOn(p.Clone(), settings...)
+}
+
+// newExactOn evaluates the given private copy (already cloned or reduced).
+func newExactOn(clone *engine.Project, settings ...*Setting) *exactModel {
+	e := &exactModel{clone: clone, settings: settings}
 	for _, s := range settings {
 		var n *engine.Node
 		if !s.Input.IsVariable() {

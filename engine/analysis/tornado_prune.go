@@ -92,15 +92,28 @@ func (pr *pruner) project(name string) *engine.Project {
 			return pr.p.Clone() // the tolerance moves every certainty equivalent
 		}
 	}
-	dirty := map[*engine.Node]bool{}
+	var seeds []*engine.Node
 	for d := range deps {
-		for _, n := range pr.uses[d] {
-			for m := n; m != nil && !dirty[m]; m = pr.parent[m] {
-				dirty[m] = true
+		seeds = append(seeds, pr.uses[d]...)
+	}
+	return pr.reduce(pr.p.Root, seeds)
+}
+
+// reduce copies the subtree at top (the root for a whole project) keeping the
+// seed nodes and their ancestors up to top; every other subtree hanging off
+// them becomes an end node paying its exact base value. It returns nil when no
+// seed lies under top.
+func (pr *pruner) reduce(top *engine.Node, seeds []*engine.Node) *engine.Project {
+	dirty := map[*engine.Node]bool{}
+	for _, n := range seeds {
+		for m := n; m != nil && !dirty[m]; m = pr.parent[m] {
+			dirty[m] = true
+			if m == top {
+				break
 			}
 		}
 	}
-	if !dirty[pr.p.Root] {
+	if !dirty[top] {
 		return nil
 	}
 	c := *pr.p
@@ -111,9 +124,9 @@ func (pr *pruner) project(name string) *engine.Project {
 	copyNode := func(n *engine.Node) *engine.Node {
 		return &engine.Node{ID: n.ID, Kind: n.Kind, Name: n.Name, Payoff: n.Payoff}
 	}
-	c.Root = copyNode(pr.p.Root)
+	c.Root = copyNode(top)
 	type pair struct{ from, to *engine.Node }
-	stack := []pair{{pr.p.Root, c.Root}}
+	stack := []pair{{top, c.Root}}
 	for len(stack) > 0 {
 		pp := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
