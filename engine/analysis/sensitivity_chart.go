@@ -5,7 +5,6 @@ import (
 	"image"
 	"image/color"
 	"io"
-	"path/filepath"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -20,26 +19,16 @@ import (
 	"github.com/ramify-app/ramify/engine"
 )
 
-// Charts of the sensitivity analyses, drawn with gonum/plot in a print style.
-// The save and render helpers below are private stand-ins until the shared
-// chart helpers (chart.go) reach this branch; they write by extension through
-// engine.WriteAtomic the same way.
+// Charts of the sensitivity analyses, drawn with gonum/plot in the shared
+// print style (chart.go). They are written with the legend in a band below the
+// plot (drawFigure), so a legend never covers lines, bars or regions.
 
-// Alternative colours: distinct in hue and in grey level.
-var sensColors = []color.RGBA{
-	{R: 0x1f, G: 0x4e, B: 0x79, A: 0xff}, // dark blue
-	{R: 0xe0, G: 0x8a, B: 0x2c, A: 0xff}, // orange
-	{R: 0x5b, G: 0x9b, B: 0x5a, A: 0xff}, // mid green
-	{R: 0x8e, G: 0x5a, B: 0xa8, A: 0xff}, // violet
-	{R: 0xc9, G: 0xc2, B: 0x4a, A: 0xff}, // olive yellow
-	{R: 0x6e, G: 0x6e, B: 0x6e, A: 0xff}, // grey
+// sensColor is alternative i's colour, the shared series colour.
+func sensColor(i int) color.RGBA {
+	return color.RGBAModel.Convert(SeriesFill(i)).(color.RGBA)
 }
 
-var sensDashes = [][]vg.Length{nil, {vg.Points(6), vg.Points(3)}, {vg.Points(2), vg.Points(2)},
-	{vg.Points(8), vg.Points(3), vg.Points(2), vg.Points(3)}}
-
-func sensColor(i int) color.RGBA { return sensColors[i%len(sensColors)] }
-
+// sensLight is a light tint of alternative i's colour, for filled regions.
 func sensLight(i int) color.RGBA {
 	c := sensColor(i)
 	mix := func(v uint8) uint8 { return uint8((int(v) + 2*255) / 3) }
@@ -47,40 +36,9 @@ func sensLight(i int) color.RGBA {
 }
 
 func sensPlot(title, x, y string) *plot.Plot {
-	p := plot.New()
-	p.Title.Text = title
-	p.X.Label.Text = x
-	p.Y.Label.Text = y
-	p.BackgroundColor = color.White
+	p := NewChart(title, x, y)
 	p.Legend.Top = true
-	p.Legend.TextStyle.Font.Size = vg.Points(9)
 	return p
-}
-
-func withUnit(word, unit string) string {
-	if strings.TrimSpace(unit) == "" {
-		return word
-	}
-	return fmt.Sprintf("%s (%s)", word, unit)
-}
-
-// valueTicks prints value axis ticks the way Ramify prints values.
-type valueTicks struct{ decimals int }
-
-func (t valueTicks) Ticks(min, max float64) []plot.Tick {
-	ticks := plot.DefaultTicks{}.Ticks(min, max)
-	for i := range ticks {
-		if ticks[i].Label != "" {
-			places := t.decimals
-			d := decimal.NewFromFloat(ticks[i].Value)
-			if !d.Round(int32(places)).Equal(d) && places < 4 {
-				places = 4
-				d = d.Round(4)
-			}
-			ticks[i].Label = engine.FormatNumber(d, places)
-		}
-	}
-	return ticks
 }
 
 func (s *SweepResult) inputUnit() string {
@@ -93,9 +51,9 @@ func (s *SweepResult) inputUnit() string {
 // Chart draws each alternative's value across the range, the break-evens
 // marked with a vertical line and their value.
 func (s *SweepResult) Chart() (*plot.Plot, error) {
-	title := fmt.Sprintf("%s at %q as %s varies", capitalize(s.ValueWord), engine.NodeTitle(s.Decision), s.InputName)
-	p := sensPlot(title, withUnit(s.InputName, s.inputUnit()), withUnit(capitalize(s.ValueWord), s.Unit))
-	p.Y.Tick.Marker = valueTicks{s.Decimals}
+	title := fmt.Sprintf("%s at %q as %s varies", sensCapital(s.ValueWord), engine.NodeTitle(s.Decision), s.InputName)
+	p := sensPlot(title, UnitLabel(s.InputName, s.inputUnit()), UnitLabel(sensCapital(s.ValueWord), s.Unit))
+	p.Y.Tick.Marker = ValueTicks{Decimals: s.Decimals}
 	p.X.Tick.Marker = numberTicks{}
 	lo, hi := 0.0, 0.0
 	for a, name := range s.Alternatives {
@@ -113,9 +71,7 @@ func (s *SweepResult) Chart() (*plot.Plot, error) {
 		if err != nil {
 			return nil, err
 		}
-		line.Color = sensColor(a)
-		line.Width = vg.Points(1.8)
-		line.Dashes = sensDashes[a%len(sensDashes)]
+		line.LineStyle = SeriesStyle(a)
 		p.Add(line)
 		p.Legend.Add(name, line)
 	}
@@ -142,7 +98,7 @@ func (s *SweepResult) Chart() (*plot.Plot, error) {
 	return p, nil
 }
 
-func capitalize(s string) string {
+func sensCapital(s string) string {
 	if s == "" {
 		return s
 	}
@@ -175,8 +131,8 @@ func (t *TornadoResult) Chart() (*plot.Plot, error) {
 	if len(t.Bars) == 0 {
 		return nil, fmt.Errorf("no variable has both a low and a high, so there is no tornado to draw")
 	}
-	p := sensPlot(fmt.Sprintf("Tornado diagram: %s", t.ValueWord), withUnit(capitalize(t.ValueWord), t.Unit), "")
-	p.X.Tick.Marker = valueTicks{t.Decimals}
+	p := sensPlot(fmt.Sprintf("Tornado diagram: %s", t.ValueWord), UnitLabel(sensCapital(t.ValueWord), t.Unit), "")
+	p.X.Tick.Marker = ValueTicks{Decimals: t.Decimals}
 	n := len(t.Bars)
 	names := make([]string, n)
 	base := t.Base.InexactFloat64()
@@ -326,20 +282,17 @@ func (sensBoundaryThumb) Thumbnail(c *draw.Canvas) {
 	c.StrokeLine2(draw.LineStyle{Color: color.Black, Width: vg.Points(1.4)}, c.Min.X, y, c.Max.X, y)
 }
 
-// Chart sizes: a landscape figure for a printed page.
-const (
-	sensChartWidth  = 16 * vg.Centimeter
-	sensChartHeight = 11 * vg.Centimeter
-)
+// Sensitivity charts are a little taller than the default: the legend sits below.
+const sensChartHeight = ChartHeight + 1*vg.Centimeter
 
 // SaveSensitivityChart writes p to path as PNG, SVG or PDF, chosen by the
-// extension, atomically.
+// extension, atomically (a failure leaves an earlier file intact).
 func SaveSensitivityChart(p *plot.Plot, path string) error {
-	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(path), "."))
-	if ext != "png" && ext != "svg" && ext != "pdf" {
-		return fmt.Errorf("%s: cannot write %q charts; end the name with .png, .svg or .pdf", path, ext)
+	format, err := ChartFormat(path)
+	if err != nil {
+		return err
 	}
-	return engine.WriteAtomic(path, func(w io.Writer) error { return WriteSensitivityChart(w, p, ext) })
+	return engine.WriteAtomic(path, func(w io.Writer) error { return WriteSensitivityChart(w, p, format) })
 }
 
 // WriteSensitivityChart draws p in a format ("png", "svg", "pdf") to w.
@@ -347,12 +300,12 @@ func WriteSensitivityChart(w io.Writer, p *plot.Plot, format string) error {
 	var c vg.CanvasWriterTo
 	switch format {
 	case "png":
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(sensChartWidth, sensChartHeight), vgimg.UseDPI(144),
+		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(ChartWidth, sensChartHeight), vgimg.UseDPI(ChartDPI),
 			vgimg.UseBackgroundColor(color.White))}
 	case "svg":
-		c = vgsvg.New(sensChartWidth, sensChartHeight)
+		c = vgsvg.New(ChartWidth, sensChartHeight)
 	case "pdf":
-		c = vgpdf.New(sensChartWidth, sensChartHeight)
+		c = vgpdf.New(ChartWidth, sensChartHeight)
 	default:
 		return fmt.Errorf("cannot write %q charts; use png, svg or pdf", format)
 	}

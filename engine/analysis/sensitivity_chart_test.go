@@ -47,7 +47,7 @@ func TestSensitivityChartsSaveInEveryFormat(t *testing.T) {
 	}
 	pl, _ := sw.Chart()
 	err = SaveSensitivityChart(pl, filepath.Join(dir, "chart.gif"))
-	assert.ErrorContains(t, err, "end the name with .png, .svg or .pdf")
+	assert.ErrorContains(t, err, ".png, .svg or .pdf")
 	if out := os.Getenv("RAMIFY_CHART_DIR"); out != "" { // for looking at the charts by eye
 		for name, build := range charts {
 			pl, _ := build()
