@@ -34,10 +34,13 @@ type sweepPanel struct {
 	result   *analysis.SweepResult
 	content  fyne.CanvasObject
 	running  context.CancelFunc
+	// background runs work off the event goroutine; tests run it inline, as the
+	// Fyne test driver's fyne.Do runs on the calling goroutine.
+	background func(func())
 }
 
 func newSweepPanel(h Host) *sweepPanel {
-	sp := &sweepPanel{h: h, chart: newChartBox(), table: newTextTable()}
+	sp := &sweepPanel{h: h, chart: newChartBox(), table: newTextTable(), background: func(f func()) { go f() }}
 	sp.input = widget.NewSelect(nil, nil)
 	sp.input.PlaceHolder = "Input to vary"
 	sp.from, sp.to = widget.NewEntry(), widget.NewEntry()
@@ -122,7 +125,7 @@ func (sp *sweepPanel) Run() {
 	sp.running = cancel
 	clone := sp.h.Project().Clone()
 	sp.status.SetText("Working…")
-	go func() {
+	sp.background(func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Sweep(ctx, clone, r, in, opts)
 		var show func()
@@ -145,7 +148,7 @@ func (sp *sweepPanel) Run() {
 			}
 			show()
 		})
-	}()
+	})
 }
 
 func (sp *sweepPanel) show(res *analysis.SweepResult) {
@@ -197,10 +200,12 @@ type tornadoPanel struct {
 	result  *analysis.TornadoResult
 	content fyne.CanvasObject
 	running context.CancelFunc
+	// background runs work off the event goroutine (inline in tests).
+	background func(func())
 }
 
 func newTornadoPanel(h Host) *tornadoPanel {
-	tp := &tornadoPanel{h: h, chart: newChartBox(), table: newTextTable()}
+	tp := &tornadoPanel{h: h, chart: newChartBox(), table: newTextTable(), background: func(f func()) { go f() }}
 	tp.run = widget.NewButton("Run", tp.Run)
 	tp.status = widget.NewLabel("Every variable with a low and a high gets a bar. Press Run.")
 	tp.status.Wrapping = fyne.TextWrapWord
@@ -237,7 +242,7 @@ func (tp *tornadoPanel) Run() {
 	tp.running = cancel
 	clone := tp.h.Project().Clone()
 	tp.status.SetText("Working…")
-	go func() {
+	tp.background(func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Tornado(ctx, clone, r)
 		var show func()
@@ -263,7 +268,7 @@ func (tp *tornadoPanel) Run() {
 			}
 			show()
 		})
-	}()
+	})
 }
 
 func (tp *tornadoPanel) show(t *analysis.TornadoResult) {
@@ -306,10 +311,12 @@ type regionsPanel struct {
 	result     *analysis.RegionMap
 	content    fyne.CanvasObject
 	running    context.CancelFunc
+	// background runs work off the event goroutine (inline in tests).
+	background func(func())
 }
 
 func newRegionsPanel(h Host) *regionsPanel {
-	rp := &regionsPanel{h: h, chart: newChartBox(), table: newTextTable()}
+	rp := &regionsPanel{h: h, chart: newChartBox(), table: newTextTable(), background: func(f func()) { go f() }}
 	rp.x, rp.y = widget.NewSelect(nil, nil), widget.NewSelect(nil, nil)
 	rp.x.PlaceHolder, rp.y.PlaceHolder = "Across", "Up"
 	rp.xFrom, rp.xTo, rp.yFrom, rp.yTo = widget.NewEntry(), widget.NewEntry(), widget.NewEntry(), widget.NewEntry()
@@ -434,7 +441,7 @@ func (rp *regionsPanel) Run() {
 	rp.run.Disable()
 	rp.cancel.Enable()
 	rp.status.SetText("Working…")
-	go func() {
+	rp.background(func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Regions(ctx, clone, r, x, y, opts)
 		var show func()
@@ -460,7 +467,7 @@ func (rp *regionsPanel) Run() {
 			}
 			show()
 		})
-	}()
+	})
 }
 
 func (rp *regionsPanel) show(rm *analysis.RegionMap) {
