@@ -472,3 +472,50 @@ func TestBreakEvenNotesAgreeWithExactSweepsOnRandomTrees(t *testing.T) {
 	}
 	assert.Greater(t, checked, 10, "the random trees must give some notes")
 }
+
+func TestFloatSettingsAgreeWithExactSettingsOnRandomTrees(t *testing.T) {
+	// The float evaluator with an input overridden (variable, or a probability
+	// under either rule) against the exact engine with the same input written
+	// into a clone: 1e-9 relative, and the same choice at the root.
+	rng := rand.New(rand.NewPCG(21, 5))
+	checked := 0
+	for seed := uint64(1); seed <= 20; seed++ {
+		p := withVariables(seed, 80, 3)
+		if seed%3 == 0 {
+			p.Risk = engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "4000"}
+		}
+		r := sensEvaluated(t, p)
+		inputs := []Input{VariableInput("v1"), VariableInput("v3")}
+		for _, n := range p.Nodes() {
+			if n.Kind == engine.Chance && len(inputs) < 8 {
+				inputs = append(inputs, FieldInput(n.ID, rng.IntN(len(n.Branches)), FieldProbability))
+			}
+		}
+		m, err := engine.CompileFast(p)
+		require.NoError(t, err)
+		for _, in := range inputs {
+			s, err := Prepare(p, r, in, nil)
+			if err != nil {
+				continue // e.g. the other branches are all 0
+			}
+			b, err := s.bindFast(m, p)
+			require.NoError(t, err)
+			ex := newExact(p, s)
+			for k := 0; k < 4; k++ {
+				frac := decimal.NewFromFloat(rng.Float64()).Round(6)
+				x := s.Low.Add(s.High.Sub(s.Low).Mul(frac))
+				b.set(m, x.InexactFloat64())
+				require.NoError(t, m.Roll(), "%s at %s", in, x)
+				er, err := ex.eval(x)
+				require.NoError(t, err)
+				want := er.DisplayValue(ex.clone.Root).InexactFloat64()
+				assert.InDelta(t, want, m.RootValue(), 1e-9*math.Max(1, math.Abs(want)), "seed %d %s at %s (%s)", seed, in, x, s.Rule)
+				assert.Equal(t, er.Choice(ex.clone.Root), m.ChoiceOf(p.Root), "seed %d %s at %s", seed, in, x)
+				checked++
+			}
+			m.ResetVars()
+			m.ResetFields()
+		}
+	}
+	assert.Greater(t, checked, 300)
+}
