@@ -91,8 +91,8 @@ type inputChoice struct {
 	in    analysis.Input
 }
 
-// inputChoices lists the variables, then each chance branch's probability and
-// each branch cash that is set, with readable labels.
+// inputChoices lists the variables, then each chance branch's probability, each
+// branch cash that is set and each end payoff, with readable labels.
 func inputChoices(p *engine.Project, withFields bool) []inputChoice {
 	var out []inputChoice
 	if p == nil {
@@ -110,6 +110,10 @@ func inputChoices(p *engine.Project, withFields bool) []inputChoice {
 	}
 	const most = 2000
 	engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+		if n.Kind == engine.End && strings.TrimSpace(n.Payoff) != "" && len(out) < most {
+			out = append(out, inputChoice{fmt.Sprintf("%s: payoff (type a range)", engine.NodeTitle(n)),
+				analysis.FieldInput(n.ID, -1, analysis.FieldPayoff)})
+		}
 		for i, b := range n.Branches {
 			if len(out) >= most {
 				return false
@@ -119,12 +123,22 @@ func inputChoices(p *engine.Project, withFields bool) []inputChoice {
 					analysis.FieldInput(n.ID, i, analysis.FieldProbability)})
 			}
 			if strings.TrimSpace(b.Cash) != "" {
-				out = append(out, inputChoice{fmt.Sprintf("%s › %s: cash", engine.NodeTitle(n), engine.BranchTitle(n, i)),
+				out = append(out, inputChoice{fmt.Sprintf("%s › %s: cash (type a range)", engine.NodeTitle(n), engine.BranchTitle(n, i)),
 					analysis.FieldInput(n.ID, i, analysis.FieldCash)})
 			}
 		}
 		return true
 	})
+	// Nodes may share a name: make every label unique with the node's id.
+	count := map[string]int{}
+	for _, c := range out {
+		count[c.label]++
+	}
+	for i, c := range out {
+		if count[c.label] > 1 && !c.in.IsVariable() {
+			out[i].label = fmt.Sprintf("%s [node %s]", c.label, c.in.NodeID)
+		}
+	}
 	return out
 }
 
