@@ -101,6 +101,10 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 		for len(stack) > 0 {
 			top := &stack[len(stack)-1]
 			f := formulas[top.name]
+			if f == nil { // dropped as part of a cycle
+				stack = stack[:len(stack)-1]
+				continue
+			}
 			if top.next < len(f.names) {
 				dep := f.names[top.next]
 				top.next++
