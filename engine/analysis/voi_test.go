@@ -14,7 +14,9 @@ import (
 	"github.com/ramify-app/ramify/engine/enginetest"
 )
 
-func end(id, payoff string) *engine.Node { return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff} }
+func end(id, payoff string) *engine.Node {
+	return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff}
+}
 
 func chance(id, name string, branches ...*engine.Branch) *engine.Node {
 	return &engine.Node{ID: id, Kind: engine.Chance, Name: name, Branches: branches}
