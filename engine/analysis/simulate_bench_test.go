@@ -51,6 +51,8 @@ func benchSimulate(b *testing.B, mode SimMode, vary bool) {
 	_ = res
 }
 
-func BenchmarkSimulateFull50Nodes2Workers(b *testing.B)          { benchSimulate(b, SimFull, false) }
-func BenchmarkSimulateFull50NodesVarying2Workers(b *testing.B)   { benchSimulate(b, SimFull, true) }
-func BenchmarkSimulateParams50NodesVarying2Workers(b *testing.B) { benchSimulate(b, SimParameters, true) }
+func BenchmarkSimulateFull50Nodes2Workers(b *testing.B)        { benchSimulate(b, SimFull, false) }
+func BenchmarkSimulateFull50NodesVarying2Workers(b *testing.B) { benchSimulate(b, SimFull, true) }
+func BenchmarkSimulateParams50NodesVarying2Workers(b *testing.B) {
+	benchSimulate(b, SimParameters, true)
+}
