@@ -13,7 +13,9 @@ import (
 	"github.com/ramify-app/ramify/engine/enginetest"
 )
 
-func end(id, payoff string) *engine.Node { return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff} }
+func end(id, payoff string) *engine.Node {
+	return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff}
+}
 
 func br(label, prob string, to *engine.Node) *engine.Branch {
 	return &engine.Branch{Label: label, Probability: prob, To: to}
@@ -287,7 +289,7 @@ func TestRiskAttitudeCertaintyEquivalent(t *testing.T) {
 	require.True(t, r.Valid(), "%v", r.Problems)
 	ce, ok := r.CertaintyEquivalent(p.FindNode("g"))
 	require.True(t, ok)
-	want := -1000 * mathLog(0.5*mathExp(-2) + 0.5*mathExp(0.5))
+	want := -1000 * mathLog(0.5*mathExp(-2)+0.5*mathExp(0.5))
 	assert.InDelta(t, want, ce.InexactFloat64(), 1e-6)
 	assert.Equal(t, "750", r.ValueOf(p.FindNode("g")).String())
 	assert.Equal(t, 1, r.Choice(p.Root), "a risk-averse decision maker takes the sure 600 over a CE of about %.0f", want)

@@ -135,9 +135,43 @@ func Chain(depth int) *engine.Project {
 	return p
 }
 
-// Wide builds a balanced tree of about n nodes alternating decision and chance levels,
-// with probabilities 0.5/0.3/rest and integer payoffs, for benchmarks.
+// Wide builds a balanced tree of about n nodes, alternating decision levels
+// (2 alternatives with cash) and chance levels (0.5 / 0.3 / rest), for benchmarks.
 func Wide(n int) *engine.Project {
-	rng := rand.New(rand.NewPCG(1, 2))
-	return RandomProject(rng, Options{Nodes: n, MaxBranches: 3, UseCash: true})
+	id := 0
+	mk := func() *engine.Node {
+		id++
+		return &engine.Node{ID: fmt.Sprintf("n%d", id), Kind: engine.End, Payoff: fmt.Sprint((id*7919)%2000 - 1000)}
+	}
+	root := mk()
+	type item struct {
+		n     *engine.Node
+		depth int
+	}
+	queue := []item{{root, 0}}
+	count := 1
+	for len(queue) > 0 && count < n {
+		it := queue[0]
+		queue = queue[1:]
+		node := it.n
+		node.Payoff = ""
+		if it.depth%2 == 0 {
+			node.Kind = engine.Decision
+			for k := 0; k < 2; k++ {
+				c := mk()
+				node.Branches = append(node.Branches, &engine.Branch{Label: fmt.Sprintf("option %d", k+1), Cash: fmt.Sprint(-10 * (k + 1)), To: c})
+				queue = append(queue, item{c, it.depth + 1})
+			}
+			count += 2
+		} else {
+			node.Kind = engine.Chance
+			for k, prob := range []string{"0.5", "0.3", engine.RestProbability} {
+				c := mk()
+				node.Branches = append(node.Branches, &engine.Branch{Label: fmt.Sprintf("outcome %d", k+1), Probability: prob, To: c})
+				queue = append(queue, item{c, it.depth + 1})
+			}
+			count += 3
+		}
+	}
+	return &engine.Project{Title: "wide", Objective: engine.Maximize, Root: root}
 }
