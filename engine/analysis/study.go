@@ -34,6 +34,7 @@ const StudyPosteriorPlaces = 12
 type StudyPlan struct {
 	Decision   *engine.Node
 	Informs    string   // the uncertainty's name
+	Results    []string // the study's results, as given
 	States     []string // its branch labels
 	Prior      []decimal.Decimal
 	Bayes      *BayesResult
@@ -106,6 +107,7 @@ func PlanStudy(p *engine.Project, spec StudySpec, opt VOIOptions) (*StudyPlan, e
 			return nil, fmt.Errorf("result %q: named twice", name)
 		}
 		seen[strings.ToLower(name)] = true
+		plan.Results = append(plan.Results, name)
 		if len(spec.Likelihood[ri]) != len(plan.States) {
 			return nil, fmt.Errorf("result %q: %d likelihoods for %d states of %q", name, len(spec.Likelihood[ri]), len(plan.States), u.Name)
 		}

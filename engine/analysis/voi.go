@@ -392,7 +392,7 @@ func wholeEVPI(base *engine.Project, r *engine.Result, us []*Uncertainty, opt VO
 			reason, crosses = u.crossesDecision(base.Root, opt.AnyBranch)
 		}
 		if reason != "" {
-			reasons = append(reasons, reason)
+			reasons = append(reasons, fmt.Sprintf("%q", u.Name))
 			continue
 		}
 		if crosses {
@@ -401,7 +401,7 @@ func wholeEVPI(base *engine.Project, r *engine.Result, us []*Uncertainty, opt VO
 		}
 	}
 	if len(reasons) > 0 {
-		f.Reason = strings.Join(reasons, "\n")
+		f.Reason = fmt.Sprintf("not every uncertainty can be learnt first: %s (see each one's reason)", strings.Join(reasons, ", "))
 		return f
 	}
 	tree := base.Root

@@ -115,7 +115,7 @@ func TestEVPISaysWhyNotValid(t *testing.T) {
 			assert.False(t, f.Valid)
 			assert.Contains(t, f.Reason, tc.reason)
 			assert.False(t, rep.Whole.Valid)
-			assert.Contains(t, rep.Whole.Reason, tc.reason)
+			assert.Contains(t, rep.Whole.Reason, `not every uncertainty can be learnt first: "Demand"`)
 		})
 	}
 	// With any-branch allowed, an uncertainty on one alternative only has a value:
