@@ -8,7 +8,7 @@ import (
 	"github.com/stretchr/testify/require"
 )
 
-func decs(ss ...string) []decimal.Decimal {
+func vtDecs(ss ...string) []decimal.Decimal {
 	out := make([]decimal.Decimal, len(ss))
 	for i, s := range ss {
 		out[i] = decimal.RequireFromString(s)
@@ -21,10 +21,10 @@ func decs(ss ...string) []decimal.Decimal {
 // memory): 1 % prevalence, 80 % sensitivity, 9.6 % false positives → about 7.8 %
 // after a positive result.
 func TestBayesScreeningExample(t *testing.T) {
-	prior := decs("0.01", "0.99") // disease, no disease
+	prior := vtDecs("0.01", "0.99") // disease, no disease
 	likelihood := [][]decimal.Decimal{
-		decs("0.8", "0.096"), // positive
-		decs("0.2", "0.904"), // negative
+		vtDecs("0.8", "0.096"), // positive
+		vtDecs("0.2", "0.904"), // negative
 	}
 	b, err := Bayes(prior, likelihood)
 	require.NoError(t, err)
@@ -46,10 +46,10 @@ func TestBayesRejectsBadTables(t *testing.T) {
 		likelihood [][]decimal.Decimal
 		want       string
 	}{
-		{"prior sum", decs("0.5", "0.4"), [][]decimal.Decimal{decs("1", "1")}, "prior probabilities add up to 0.9"},
-		{"column sum", decs("0.5", "0.5"), [][]decimal.Decimal{decs("0.9", "0.2"), decs("0.2", "0.8")}, "for state 1 the chances of the results add up to 1.1"},
-		{"range", decs("0.5", "0.5"), [][]decimal.Decimal{decs("1.2", "0.2"), decs("-0.2", "0.8")}, "outside 0 to 1"},
-		{"shape", decs("0.5", "0.5"), [][]decimal.Decimal{decs("1")}, "1 likelihoods for 2 states"},
+		{"prior sum", vtDecs("0.5", "0.4"), [][]decimal.Decimal{vtDecs("1", "1")}, "prior probabilities add up to 0.9"},
+		{"column sum", vtDecs("0.5", "0.5"), [][]decimal.Decimal{vtDecs("0.9", "0.2"), vtDecs("0.2", "0.8")}, "for state 1 the chances of the results add up to 1.1"},
+		{"range", vtDecs("0.5", "0.5"), [][]decimal.Decimal{vtDecs("1.2", "0.2"), vtDecs("-0.2", "0.8")}, "outside 0 to 1"},
+		{"shape", vtDecs("0.5", "0.5"), [][]decimal.Decimal{vtDecs("1")}, "1 likelihoods for 2 states"},
 	}
 	for _, tc := range tests {
 		_, err := Bayes(tc.prior, tc.likelihood)

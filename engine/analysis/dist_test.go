@@ -14,7 +14,7 @@ import (
 )
 
 // reference is what an independent library (gonum's distuv) says about a distribution.
-type reference interface {
+type vtReference interface {
 	Mean() float64
 	Variance() float64
 	ExKurtosis() float64
@@ -22,19 +22,19 @@ type reference interface {
 }
 
 // scaled maps a distribution on [0, 1] (gonum's Beta) onto [a, b].
-type scaled struct {
+type vtScaled struct {
 	d    distuv.Beta
 	a, b float64
 }
 
-func (s scaled) Mean() float64       { return s.a + (s.b-s.a)*s.d.Mean() }
-func (s scaled) Variance() float64   { return (s.b - s.a) * (s.b - s.a) * s.d.Variance() }
-func (s scaled) ExKurtosis() float64 { return s.d.ExKurtosis() }
-func (s scaled) CDF(x float64) float64 {
+func (s vtScaled) Mean() float64       { return s.a + (s.b-s.a)*s.d.Mean() }
+func (s vtScaled) Variance() float64   { return (s.b - s.a) * (s.b - s.a) * s.d.Variance() }
+func (s vtScaled) ExKurtosis() float64 { return s.d.ExKurtosis() }
+func (s vtScaled) CDF(x float64) float64 {
 	return s.d.CDF((x - s.a) / (s.b - s.a))
 }
 
-func compileOne(t *testing.T, d *engine.Distribution) *Sampler {
+func vtCompileOne(t *testing.T, d *engine.Distribution) *Sampler {
 	t.Helper()
 	s, err := CompileDist(&engine.Variable{Name: "x", Value: "1", Dist: d}, engine.MapEnv{"x": engine.Decimal{}})
 	require.NoError(t, err)
@@ -51,13 +51,13 @@ func TestDistributionsAgainstGonum(t *testing.T) {
 	tests := []struct {
 		name string
 		dist *engine.Distribution
-		ref  reference
+		ref  vtReference
 	}{
 		{"uniform", &engine.Distribution{Kind: engine.DistUniform, Min: "-3", Max: "7"}, distuv.Uniform{Min: -3, Max: 7}},
 		{"triangular", &engine.Distribution{Kind: engine.DistTriangular, Min: "2", Mode: "5", Max: "14"}, distuv.NewTriangle(2, 14, 5, nil)},
 		{"triangular at min", &engine.Distribution{Kind: engine.DistTriangular, Min: "0", Mode: "0", Max: "1"}, distuv.NewTriangle(0, 1, 0, nil)},
-		{"pert", &engine.Distribution{Kind: engine.DistPERT, Min: "2", Mode: "5", Max: "14"}, scaled{distuv.Beta{Alpha: 2, Beta: 4}, 2, 14}},
-		{"pert symmetric", &engine.Distribution{Kind: engine.DistPERT, Min: "0", Mode: "50", Max: "100"}, scaled{distuv.Beta{Alpha: 3, Beta: 3}, 0, 100}},
+		{"pert", &engine.Distribution{Kind: engine.DistPERT, Min: "2", Mode: "5", Max: "14"}, vtScaled{distuv.Beta{Alpha: 2, Beta: 4}, 2, 14}},
+		{"pert symmetric", &engine.Distribution{Kind: engine.DistPERT, Min: "0", Mode: "50", Max: "100"}, vtScaled{distuv.Beta{Alpha: 3, Beta: 3}, 0, 100}},
 		{"normal", &engine.Distribution{Kind: engine.DistNormal, Mean: "250", SD: "40"}, distuv.Normal{Mu: 250, Sigma: 40}},
 		{"lognormal", &engine.Distribution{Kind: engine.DistLognormal, Mean: "100", SD: "30"},
 			distuv.LogNormal{Mu: math.Log(100) - sigma2/2, Sigma: math.Sqrt(sigma2)}},
@@ -65,7 +65,7 @@ func TestDistributionsAgainstGonum(t *testing.T) {
 	const n = 200000
 	for i, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			s := compileOne(t, tc.dist)
+			s := vtCompileOne(t, tc.dist)
 			r := rand.New(rand.NewPCG(2026, uint64(i)))
 			xs := make([]float64, n)
 			mean := 0.0
@@ -98,7 +98,7 @@ func TestDistributionsAgainstGonum(t *testing.T) {
 }
 
 func TestDiscreteFrequencies(t *testing.T) {
-	s := compileOne(t, &engine.Distribution{Kind: engine.DistDiscrete,
+	s := vtCompileOne(t, &engine.Distribution{Kind: engine.DistDiscrete,
 		Values: []string{"10", "20", "35"}, Probs: []string{"0.2", "0.5", "0.3"}})
 	// Categorical from gonum gives the reference probabilities of each index.
 	ref := distuv.NewCategorical([]float64{0.2, 0.5, 0.3}, nil)
@@ -131,7 +131,7 @@ func TestPERTAndTriangularMeans(t *testing.T) {
 		{engine.DistTriangular, "-5", "5", "5", (-5 + 5 + 5) / 3.0, 0.05},
 	}
 	for _, tc := range tests {
-		s := compileOne(t, &engine.Distribution{Kind: tc.kind, Min: tc.a, Mode: tc.m, Max: tc.b})
+		s := vtCompileOne(t, &engine.Distribution{Kind: tc.kind, Min: tc.a, Mode: tc.m, Max: tc.b})
 		assert.InDelta(t, tc.want, s.Mean(), 1e-12, "%s closed form", tc.kind)
 		r := rand.New(rand.NewPCG(1, 2))
 		sum := 0.0

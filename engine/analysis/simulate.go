@@ -50,10 +50,11 @@ type SimOptions struct {
 
 // Alternative is one branch of the first decision, as the simulation saw it.
 type Alternative struct {
-	Label string
-	Value Summary // its value (cash + value below) per iteration
-	Best  int     // iterations in which it was the recommended choice
-	PBest float64
+	Label   string
+	Value   Summary // its value (cash + value below) per iteration
+	Best    int     // iterations in which it was the recommended choice
+	PBest   float64
+	Samples []float64 // its value in the kept iterations; NaN where invalid
 }
 
 // ConvergencePoint is the running mean after Iteration counted iterations.
@@ -357,7 +358,7 @@ func Simulate(ctx context.Context, p *engine.Project, opt SimOptions) (*SimResul
 	res.Loss = float64(total.loss) / float64(total.value.n)
 	for a, label := range alts {
 		res.Alternatives = append(res.Alternatives, Alternative{Label: label, Value: summarize(total.alts[a], altSamples[a]),
-			Best: total.best[a], PBest: float64(total.best[a]) / float64(total.value.n)})
+			Best: total.best[a], PBest: float64(total.best[a]) / float64(total.value.n), Samples: altSamples[a]})
 	}
 	res.Histogram = histogram(res.Samples, 40)
 	return res, nil

@@ -12,7 +12,7 @@ import (
 
 // benchProject is a 50-node tree; with vary set, two variables used in payoffs
 // and one used as a probability get distributions, so every iteration rolls back.
-func benchProject(vary bool) *engine.Project {
+func vtBenchProject(vary bool) *engine.Project {
 	// The first random tree (fixed seeds) with about 50 nodes.
 	var p *engine.Project
 	for seed := uint64(1); ; seed++ {
@@ -35,8 +35,8 @@ func benchProject(vary bool) *engine.Project {
 	return p
 }
 
-func benchSimulate(b *testing.B, mode SimMode, vary bool) {
-	p := benchProject(vary)
+func vtBenchSimulate(b *testing.B, mode SimMode, vary bool) {
+	p := vtBenchProject(vary)
 	if n := len(p.Nodes()); n < 45 || n > 60 {
 		b.Fatalf("tree has %d nodes", n)
 	}
@@ -51,8 +51,8 @@ func benchSimulate(b *testing.B, mode SimMode, vary bool) {
 	_ = res
 }
 
-func BenchmarkSimulateFull50Nodes2Workers(b *testing.B)        { benchSimulate(b, SimFull, false) }
-func BenchmarkSimulateFull50NodesVarying2Workers(b *testing.B) { benchSimulate(b, SimFull, true) }
+func BenchmarkSimulateFull50Nodes2Workers(b *testing.B)        { vtBenchSimulate(b, SimFull, false) }
+func BenchmarkSimulateFull50NodesVarying2Workers(b *testing.B) { vtBenchSimulate(b, SimFull, true) }
 func BenchmarkSimulateParams50NodesVarying2Workers(b *testing.B) {
-	benchSimulate(b, SimParameters, true)
+	vtBenchSimulate(b, SimParameters, true)
 }

@@ -14,7 +14,7 @@ import (
 	"github.com/ramify-app/ramify/engine/enginetest"
 )
 
-func loadDemo(t testing.TB) *engine.Project {
+func vtLoadDemo(t testing.TB) *engine.Project {
 	t.Helper()
 	p, err := engine.Load("../../assets/demos/chiller-cover.ramify.json")
 	require.NoError(t, err)
@@ -22,7 +22,7 @@ func loadDemo(t testing.TB) *engine.Project {
 }
 
 // withDistributions gives the demo's variables spreads (invented for the test).
-func withDistributions(p *engine.Project) *engine.Project {
+func vtWithDistributions(p *engine.Project) *engine.Project {
 	set := map[string]*engine.Distribution{
 		"rent_week":     {Kind: engine.DistTriangular, Min: "7000", Mode: "9500", Max: "13000"},
 		"install_cost":  {Kind: engine.DistPERT, Min: "220000", Mode: "240000", Max: "265000"},
@@ -38,7 +38,7 @@ func withDistributions(p *engine.Project) *engine.Project {
 }
 
 func TestParameterModeWithFixedVariablesReproducesTheBaseCase(t *testing.T) {
-	p := loadDemo(t)
+	p := vtLoadDemo(t)
 	r := engine.Evaluate(p.Clone())
 	res, err := Simulate(context.Background(), p, SimOptions{N: 10000, Seed: 1, Mode: SimParameters})
 	require.NoError(t, err)
@@ -58,7 +58,7 @@ func TestParameterModeWithFixedVariablesReproducesTheBaseCase(t *testing.T) {
 // must approach the rolled-back EV (law of large numbers; 4 standard errors).
 func TestFullModeConvergesToRolledBackEV(t *testing.T) {
 	rng := rand.New(rand.NewPCG(8, 9))
-	projects := []*engine.Project{loadDemo(t)}
+	projects := []*engine.Project{vtLoadDemo(t)}
 	for range 5 {
 		projects = append(projects, enginetest.RandomProject(rng, enginetest.Options{Nodes: 40, MaxBranches: 3, UseCash: true, UseRest: true, UseVars: true}))
 	}
@@ -73,7 +73,7 @@ func TestFullModeConvergesToRolledBackEV(t *testing.T) {
 }
 
 func TestSameSeedSameResultOnAnyNumberOfWorkers(t *testing.T) {
-	p := withDistributions(loadDemo(t))
+	p := vtWithDistributions(vtLoadDemo(t))
 	for _, mode := range []SimMode{SimParameters, SimFull} {
 		one, err := Simulate(context.Background(), p, SimOptions{N: 50000, Seed: 42, Mode: mode, Workers: 1})
 		require.NoError(t, err)
@@ -94,7 +94,7 @@ func TestSameSeedSameResultOnAnyNumberOfWorkers(t *testing.T) {
 // serial estimate of the same quantity computed with the exact engine on a few
 // hundred draws of the same distributions (within 4 standard errors of both).
 func TestParameterModeAgainstExactEngine(t *testing.T) {
-	p := withDistributions(loadDemo(t))
+	p := vtWithDistributions(vtLoadDemo(t))
 	res, err := Simulate(context.Background(), p, SimOptions{N: 100000, Seed: 3, Mode: SimParameters})
 	require.NoError(t, err)
 	base := engine.Evaluate(p.Clone())
@@ -105,7 +105,7 @@ func TestParameterModeAgainstExactEngine(t *testing.T) {
 	for range 400 {
 		q := p.Clone()
 		for k, s := range samplers {
-			q.Variables[k].Value = formatFloat(s.Sample(rng))
+			q.Variables[k].Value = vtFormatFloat(s.Sample(rng))
 		}
 		r := engine.Evaluate(q)
 		require.True(t, r.Valid(), "%v", r.Problems)
@@ -122,16 +122,16 @@ func TestParameterModeAgainstExactEngine(t *testing.T) {
 	assert.Less(t, res.Value.P50, res.Value.P95)
 }
 
-func formatFloat(x float64) string {
+func vtFormatFloat(x float64) string {
 	return strconv.FormatFloat(x, 'f', -1, 64)
 }
 
 func TestInvalidIterationsAreCountedNotClipped(t *testing.T) {
 	p := &engine.Project{Objective: engine.Maximize,
 		Variables: []*engine.Variable{{Name: "q", Value: "0.8", Dist: &engine.Distribution{Kind: engine.DistUniform, Min: "0.5", Max: "1.2"}}},
-		Root: decision("d", "Go?",
-			br("Go", "", chance("c", "Works", br("Yes", "q", end("y", "100")), br("No", "rest", end("n", "-40")))),
-			br("Stay", "", end("s", "0")))}
+		Root: vtDecision("d", "Go?",
+			vtBr("Go", "", vtChance("c", "Works", vtBr("Yes", "q", vtEnd("y", "100")), vtBr("No", "rest", vtEnd("n", "-40")))),
+			vtBr("Stay", "", vtEnd("s", "0")))}
 	res, err := Simulate(context.Background(), p, SimOptions{N: 70000, Seed: 5})
 	require.NoError(t, err)
 	// P(q > 1) = 0.2 / 0.7 for q uniform on [0.5, 1.2].
@@ -143,26 +143,26 @@ func TestInvalidIterationsAreCountedNotClipped(t *testing.T) {
 }
 
 func TestSimulationBadInput(t *testing.T) {
-	p := loadDemo(t)
+	p := vtLoadDemo(t)
 	before, _ := engine.Marshal(p)
 	_, err := Simulate(context.Background(), p, SimOptions{N: 0})
 	assert.ErrorContains(t, err, "at least 1 (got 0)")
 	_, err = Simulate(context.Background(), p, SimOptions{N: 10, Mode: "wild"})
 	assert.ErrorContains(t, err, `mode "wild" is unknown`)
-	bad := loadDemo(t)
+	bad := vtLoadDemo(t)
 	bad.Variables[0].Dist = &engine.Distribution{Kind: engine.DistTriangular, Min: "10", Mode: "1", Max: "20"}
 	_, err = Simulate(context.Background(), bad, SimOptions{N: 10})
 	assert.ErrorContains(t, err, `variable "rent_week" distribution mode: 1 is outside min 10 to max 20`)
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	_, err = Simulate(ctx, withDistributions(p.Clone()), SimOptions{N: 1_000_000})
+	_, err = Simulate(ctx, vtWithDistributions(p.Clone()), SimOptions{N: 1_000_000})
 	assert.ErrorContains(t, err, "cancelled")
 	after, _ := engine.Marshal(p)
 	assert.Equal(t, string(before), string(after), "the project is unchanged")
 }
 
 func TestCancelMidRun(t *testing.T) {
-	p := withDistributions(loadDemo(t))
+	p := vtWithDistributions(vtLoadDemo(t))
 	ctx, cancel := context.WithCancel(context.Background())
 	calls := 0
 	_, err := Simulate(ctx, p, SimOptions{N: 5_000_000, Seed: 1, Progress: func(done, total int) {
@@ -178,7 +178,7 @@ func TestCancelMidRun(t *testing.T) {
 func TestPercentilesOfAUniform(t *testing.T) {
 	p := &engine.Project{Objective: engine.Maximize,
 		Variables: []*engine.Variable{{Name: "x", Value: "500", Dist: &engine.Distribution{Kind: engine.DistUniform, Min: "0", Max: "1000"}}},
-		Root:      decision("d", "Take", br("x", "", &engine.Node{ID: "e", Kind: engine.End, Payoff: "x"}))}
+		Root:      vtDecision("d", "Take", vtBr("x", "", &engine.Node{ID: "e", Kind: engine.End, Payoff: "x"}))}
 	res, err := Simulate(context.Background(), p, SimOptions{N: 200000, Seed: 9})
 	require.NoError(t, err)
 	for _, c := range []struct{ p, got float64 }{{0.05, res.Value.P5}, {0.1, res.Value.P10}, {0.5, res.Value.P50}, {0.9, res.Value.P90}, {0.95, res.Value.P95}} {

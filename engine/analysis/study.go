@@ -113,7 +113,7 @@ func PlanStudy(p *engine.Project, spec StudySpec, opt VOIOptions) (*StudyPlan, e
 		}
 		like[ri] = make([]decimal.Decimal, len(plan.States))
 		for si, src := range spec.Likelihood[ri] {
-			v, err := evalText(src, r.Vars)
+			v, err := studyNumber(src, r.Vars)
 			if err != nil {
 				return nil, fmt.Errorf("P(%q | %q): %w", name, plan.States[si], err)
 			}
@@ -135,7 +135,7 @@ func PlanStudy(p *engine.Project, spec StudySpec, opt VOIOptions) (*StudyPlan, e
 	cost := decimal.Zero
 	if strings.TrimSpace(spec.Cost) != "" {
 		var err error
-		if cost, err = evalText(spec.Cost, r.Vars); err != nil {
+		if cost, err = studyNumber(spec.Cost, r.Vars); err != nil {
 			return nil, fmt.Errorf("cost: %w", err)
 		}
 		if cost.IsNegative() {
@@ -217,7 +217,7 @@ func PlanStudy(p *engine.Project, spec StudySpec, opt VOIOptions) (*StudyPlan, e
 	return plan, nil
 }
 
-func evalText(src string, vars engine.MapEnv) (decimal.Decimal, error) {
+func studyNumber(src string, vars engine.MapEnv) (decimal.Decimal, error) {
 	if strings.TrimSpace(src) == "" {
 		return decimal.Zero, fmt.Errorf("missing")
 	}

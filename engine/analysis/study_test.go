@@ -21,7 +21,7 @@ import (
 // With the test: 0.48·62.5 + 0.52·20 = 40.4; EVSI = 40.4 − 20 = 20.4;
 // EVPI = 32 (see TestEVPIWorkedByHand), efficiency 20.4/32 = 0.6375.
 func TestStudyWorkedByHand(t *testing.T) {
-	p := launchProject()
+	p := vtLaunchProject()
 	before, err := engine.Marshal(p)
 	require.NoError(t, err)
 	plan, err := PlanStudy(p, StudySpec{DecisionID: "d", NodeID: "m2", Results: []string{"Good", "Bad"},
@@ -64,7 +64,7 @@ func TestStudyWorkedByHand(t *testing.T) {
 
 // A study that always tells the truth is perfect information: EVSI = EVPI exactly.
 func TestPerfectStudyEqualsEVPI(t *testing.T) {
-	p := launchProject()
+	p := vtLaunchProject()
 	plan, err := PlanStudy(p, StudySpec{DecisionID: "d", NodeID: "m1", Results: []string{"Says strong", "Says weak"},
 		Likelihood: [][]string{{"1", "0"}, {"0", "1"}}}, VOIOptions{})
 	require.NoError(t, err)
@@ -74,7 +74,7 @@ func TestPerfectStudyEqualsEVPI(t *testing.T) {
 }
 
 func TestStudyForCostsChargesTheCost(t *testing.T) {
-	p := launchProject()
+	p := vtLaunchProject()
 	p.Objective = engine.Minimize
 	for _, n := range p.Nodes() {
 		if n.Kind == engine.End {
@@ -106,7 +106,7 @@ func TestStudyRejectsBadInput(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			_, err := PlanStudy(launchProject(), tc.spec, VOIOptions{})
+			_, err := PlanStudy(vtLaunchProject(), tc.spec, VOIOptions{})
 			require.Error(t, err)
 			assert.Contains(t, err.Error(), tc.want)
 		})
@@ -114,7 +114,7 @@ func TestStudyRejectsBadInput(t *testing.T) {
 }
 
 // randomColumn returns k probabilities in steps of 0.05 adding up to exactly 1.
-func randomColumn(rng *rand.Rand, k int) []string {
+func vtRandomColumn(rng *rand.Rand, k int) []string {
 	left := 20
 	out := make([]string, k)
 	for i := 0; i < k-1; i++ {
@@ -148,7 +148,7 @@ func TestEVSIBetweenZeroAndEVPIOnRandomTrees(t *testing.T) {
 			like[r] = make([]string, states)
 		}
 		for s := 0; s < states; s++ {
-			col := randomColumn(rng, results)
+			col := vtRandomColumn(rng, results)
 			for r := range like {
 				like[r][s] = col[r]
 			}

@@ -14,33 +14,33 @@ import (
 	"github.com/ramify-app/ramify/engine/enginetest"
 )
 
-func end(id, payoff string) *engine.Node {
+func vtEnd(id, payoff string) *engine.Node {
 	return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff}
 }
 
-func chance(id, name string, branches ...*engine.Branch) *engine.Node {
+func vtChance(id, name string, branches ...*engine.Branch) *engine.Node {
 	return &engine.Node{ID: id, Kind: engine.Chance, Name: name, Branches: branches}
 }
 
-func decision(id, name string, branches ...*engine.Branch) *engine.Node {
+func vtDecision(id, name string, branches ...*engine.Branch) *engine.Node {
 	return &engine.Node{ID: id, Kind: engine.Decision, Name: name, Branches: branches}
 }
 
-func br(label, prob string, to *engine.Node) *engine.Branch {
+func vtBr(label, prob string, to *engine.Node) *engine.Branch {
 	return &engine.Branch{Label: label, Probability: prob, To: to}
 }
 
 // launchProject is an invented example: a product launch that pays 100 when
 // demand is strong (40 %) and loses 50 when it is weak, against a licence deal
 // paying 20 whatever happens.
-func launchProject() *engine.Project {
-	return &engine.Project{Objective: engine.Maximize, Root: decision("d", "Launch plan",
-		br("Launch", "", chance("m1", "Demand", br("Strong", "0.4", end("e1", "100")), br("Weak", "0.6", end("e2", "-50")))),
-		br("License", "", chance("m2", "demand", br("strong", "0.4", end("e3", "20")), br("weak", "rest", end("e4", "20")))),
+func vtLaunchProject() *engine.Project {
+	return &engine.Project{Objective: engine.Maximize, Root: vtDecision("d", "Launch plan",
+		vtBr("Launch", "", vtChance("m1", "Demand", vtBr("Strong", "0.4", vtEnd("e1", "100")), vtBr("Weak", "0.6", vtEnd("e2", "-50")))),
+		vtBr("License", "", vtChance("m2", "demand", vtBr("strong", "0.4", vtEnd("e3", "20")), vtBr("weak", "rest", vtEnd("e4", "20")))),
 	)}
 }
 
-func figureNamed(t *testing.T, rep *VOIReport, name string) EVPIFigure {
+func vtFigureNamed(t *testing.T, rep *VOIReport, name string) EVPIFigure {
 	t.Helper()
 	for _, f := range rep.Nodes {
 		if f.Name == name {
@@ -55,11 +55,11 @@ func figureNamed(t *testing.T, rep *VOIReport, name string) EVPIFigure {
 // 0.4·100 − 0.6·50 = 10 < 20, so License (20). Knowing demand first:
 // 0.4·max(100, 20) + 0.6·max(−50, 20) = 52. EVPI = 32.
 func TestEVPIWorkedByHand(t *testing.T) {
-	p := launchProject()
+	p := vtLaunchProject()
 	rep, err := EVPI(p, VOIOptions{})
 	require.NoError(t, err)
 	assert.Equal(t, "20", rep.Without.String())
-	f := figureNamed(t, rep, "Demand")
+	f := vtFigureNamed(t, rep, "Demand")
 	require.True(t, f.Valid, f.Reason)
 	assert.Equal(t, []string{"m1", "m2"}, f.NodeIDs, "same name ignoring case is the same uncertainty")
 	assert.Equal(t, "52", f.With.String())
@@ -72,7 +72,7 @@ func TestEVPIWorkedByHand(t *testing.T) {
 // The same problem as costs: costs are the negated payoffs, so the saving from
 // knowing first is again 32 (expected cost −52 against −20).
 func TestEVPIForCostsIsASaving(t *testing.T) {
-	p := launchProject()
+	p := vtLaunchProject()
 	p.Objective = engine.Minimize
 	for _, n := range p.Nodes() {
 		if n.Kind == engine.End {
@@ -82,7 +82,7 @@ func TestEVPIForCostsIsASaving(t *testing.T) {
 	rep, err := EVPI(p, VOIOptions{})
 	require.NoError(t, err)
 	assert.Equal(t, "-20", rep.Without.String())
-	assert.Equal(t, "32", figureNamed(t, rep, "Demand").EVPI.String())
+	assert.Equal(t, "32", vtFigureNamed(t, rep, "Demand").EVPI.String())
 }
 
 func TestEVPISaysWhyNotValid(t *testing.T) {
@@ -93,7 +93,7 @@ func TestEVPISaysWhyNotValid(t *testing.T) {
 		reason string
 	}{
 		{"only some branches", func(p *engine.Project) {
-			p.Root.Branches[1].To = end("e3", "20")
+			p.Root.Branches[1].To = vtEnd("e3", "20")
 		}, VOIOptions{}, `"Demand" lies after decision "Launch plan" only on some branches (not on "License")`},
 		{"probabilities depend on the choice", func(p *engine.Project) {
 			p.Root.Branches[1].To.Branches[0].Probability = "0.5"
@@ -102,16 +102,16 @@ func TestEVPISaysWhyNotValid(t *testing.T) {
 			p.Root.Branches[1].To.Branches[1].Label = "middling"
 		}, VOIOptions{}, `"Demand" appears in different forms`},
 		{"twice on a path", func(p *engine.Project) {
-			p.Root.Branches[0].To.Branches[0].To = chance("m3", "Demand", br("Strong", "0.4", end("e5", "1")), br("Weak", "0.6", end("e6", "2")))
+			p.Root.Branches[0].To.Branches[0].To = vtChance("m3", "Demand", vtBr("Strong", "0.4", vtEnd("e5", "1")), vtBr("Weak", "0.6", vtEnd("e6", "2")))
 		}, VOIOptions{AnyBranch: true}, `"Demand" appears twice on one path`},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			p := launchProject()
+			p := vtLaunchProject()
 			tc.edit(p)
 			rep, err := EVPI(p, tc.opt)
 			require.NoError(t, err)
-			f := figureNamed(t, rep, "Demand")
+			f := vtFigureNamed(t, rep, "Demand")
 			assert.False(t, f.Valid)
 			assert.Contains(t, f.Reason, tc.reason)
 			assert.False(t, rep.Whole.Valid)
@@ -120,17 +120,17 @@ func TestEVPISaysWhyNotValid(t *testing.T) {
 	}
 	// With any-branch allowed, an uncertainty on one alternative only has a value:
 	// 0.4·max(100, 20) + 0.6·max(−50, 20) = 52 again.
-	p := launchProject()
-	p.Root.Branches[1].To = end("e3", "20")
+	p := vtLaunchProject()
+	p.Root.Branches[1].To = vtEnd("e3", "20")
 	rep, err := EVPI(p, VOIOptions{AnyBranch: true})
 	require.NoError(t, err)
-	f := figureNamed(t, rep, "Demand")
+	f := vtFigureNamed(t, rep, "Demand")
 	require.True(t, f.Valid, f.Reason)
 	assert.Equal(t, "32", f.EVPI.String())
 }
 
 func TestEVPIRejectsInvalidProject(t *testing.T) {
-	p := launchProject()
+	p := vtLaunchProject()
 	p.Root.Branches[0].To.Branches[0].Probability = "0.3"
 	_, err := EVPI(p, VOIOptions{})
 	require.Error(t, err)
@@ -139,10 +139,10 @@ func TestEVPIRejectsInvalidProject(t *testing.T) {
 
 // scenarioValue rolls back a tree in float64 with some chance nodes forced to one
 // branch; it is an independent, recursive check of the restructuring.
-func scenarioValue(r *engine.Result, n *engine.Node, forced map[*engine.Node]int) float64 {
+func vtScenarioValue(r *engine.Result, n *engine.Node, forced map[*engine.Node]int) float64 {
 	maximize := r.Project.Objective != engine.Minimize
 	branch := func(i int) float64 {
-		return r.Cash(n, i).InexactFloat64() + scenarioValue(r, n.Branches[i].To, forced)
+		return r.Cash(n, i).InexactFloat64() + vtScenarioValue(r, n.Branches[i].To, forced)
 	}
 	switch n.Kind {
 	case engine.End:
@@ -168,12 +168,12 @@ func scenarioValue(r *engine.Result, n *engine.Node, forced map[*engine.Node]int
 
 // perfectValue enumerates every joint outcome of the given chance nodes
 // (scenario enumeration, the definition of EVPI) and returns Σ P(s)·value(s).
-func perfectValue(r *engine.Result, nodes []*engine.Node) float64 {
+func vtPerfectValue(r *engine.Result, nodes []*engine.Node) float64 {
 	forced := map[*engine.Node]int{}
 	var rec func(i int, p float64) float64
 	rec = func(i int, p float64) float64 {
 		if i == len(nodes) {
-			return p * scenarioValue(r, r.Project.Root, forced)
+			return p * vtScenarioValue(r, r.Project.Root, forced)
 		}
 		sum := 0.0
 		for k := range nodes[i].Branches {
@@ -213,13 +213,13 @@ func TestEVPIOnRandomTreesAgainstScenarioEnumeration(t *testing.T) {
 		for i, f := range rep.Nodes {
 			require.True(t, f.Valid, "trial %d: %s", trial, f.Reason)
 			assert.False(t, f.EVPI.IsNegative(), "trial %d: EVPI of %s is %s", trial, f.Name, f.EVPI)
-			want := sign * (perfectValue(r, chanceNodes[i:i+1]) - without)
+			want := sign * (vtPerfectValue(r, chanceNodes[i:i+1]) - without)
 			assert.InDelta(t, want, f.EVPI.InexactFloat64(), 1e-6, "trial %d node %s", trial, f.Name)
 			assert.True(t, rep.Whole.EVPI.GreaterThanOrEqual(f.EVPI), "learning everything is worth at least learning one thing")
 		}
 		require.True(t, rep.Whole.Valid, rep.Whole.Reason)
 		assert.False(t, rep.Whole.EVPI.IsNegative())
-		want := sign * (perfectValue(r, chanceNodes) - without)
+		want := sign * (vtPerfectValue(r, chanceNodes) - without)
 		assert.InDelta(t, want, rep.Whole.EVPI.InexactFloat64(), 1e-6, "trial %d whole", trial)
 		checked++
 	}
@@ -259,7 +259,7 @@ func TestEVPIOnTheDemo(t *testing.T) {
 		}
 	}
 	require.True(t, rep.Whole.Valid, rep.Whole.Reason)
-	want := rep.Without.InexactFloat64() - perfectValue(r, chanceNodes)
+	want := rep.Without.InexactFloat64() - vtPerfectValue(r, chanceNodes)
 	assert.InDelta(t, want, rep.Whole.EVPI.InexactFloat64(), 1e-6)
 	assert.True(t, rep.Whole.EVPI.GreaterThan(decimal.Zero))
 	assert.False(t, math.IsNaN(want))
