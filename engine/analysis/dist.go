@@ -1,7 +1,6 @@
-// Package analysis holds the analyses built on the engine: value of information,
-// Bayes' rule for studies, distributions and Monte Carlo simulation. Like the
-// engine it never imports Fyne.
 package analysis
+
+// Distributions of variables for Monte Carlo simulation.
 
 import (
 	"fmt"
@@ -273,4 +272,34 @@ func CompileDists(p *engine.Project, vars engine.MapEnv) ([]*Sampler, error) {
 		return nil, fmt.Errorf("%s", strings.Join(msgs, "\n"))
 	}
 	return out, nil
+}
+
+// SetDistribution gives a variable a distribution (nil removes it); its inverse
+// restores the previous one. The new distribution is validated first, so a
+// failed edit leaves the project unchanged.
+type SetDistribution struct {
+	Variable string
+	Dist     *engine.Distribution
+}
+
+func (c SetDistribution) Describe() string { return "Set distribution of " + c.Variable }
+
+func (c SetDistribution) Apply(p *engine.Project) (engine.Command, error) {
+	v := p.Variable(c.Variable)
+	if v == nil {
+		return nil, fmt.Errorf("variable %q is not in the project", c.Variable)
+	}
+	var d *engine.Distribution
+	if c.Dist != nil {
+		d = (&engine.Variable{Dist: c.Dist}).Clone().Dist
+		r := engine.Evaluate(p.Clone())
+		if _, ok := r.Vars[v.Name]; ok {
+			if _, err := CompileDist(&engine.Variable{Name: v.Name, Value: v.Value, Dist: d}, r.Vars); err != nil {
+				return nil, err
+			}
+		}
+	}
+	old := v.Dist
+	v.Dist = d
+	return SetDistribution{Variable: c.Variable, Dist: old}, nil
 }

@@ -168,3 +168,20 @@ func TestDistributionValidation(t *testing.T) {
 		})
 	}
 }
+
+func TestSetDistributionIsUndoableAndValidated(t *testing.T) {
+	p := &engine.Project{Variables: []*engine.Variable{{Name: "cost", Value: "10"}},
+		Root: &engine.Node{ID: "e", Kind: engine.End, Payoff: "cost"}}
+	inv, err := SetDistribution{Variable: "cost", Dist: &engine.Distribution{Kind: engine.DistUniform, Min: "5", Max: "15"}}.Apply(p)
+	require.NoError(t, err)
+	require.NotNil(t, p.Variables[0].Dist)
+	assert.Equal(t, "15", p.Variables[0].Dist.Max)
+	_, err = inv.Apply(p)
+	require.NoError(t, err)
+	assert.Nil(t, p.Variables[0].Dist)
+	_, err = SetDistribution{Variable: "cost", Dist: &engine.Distribution{Kind: engine.DistUniform, Min: "25", Max: "15"}}.Apply(p)
+	assert.ErrorContains(t, err, `variable "cost" distribution: min 25 is above max 15`)
+	assert.Nil(t, p.Variables[0].Dist, "a failed edit changes nothing")
+	_, err = SetDistribution{Variable: "nope"}.Apply(p)
+	assert.ErrorContains(t, err, `variable "nope" is not in the project`)
+}
