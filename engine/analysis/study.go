@@ -28,7 +28,7 @@ type StudySpec struct {
 
 // StudyPosteriorPlaces is how many decimals the posterior probabilities written
 // into the tree keep (cut, the largest taking the remainder so they add up to 1).
-const StudyPosteriorPlaces = 12
+const StudyPosteriorPlaces = 16
 
 // StudyPlan is what the study is worth and the edit that adds it.
 type StudyPlan struct {
