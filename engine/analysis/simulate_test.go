@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/rand/v2"
+	"runtime"
 	"strconv"
 	"testing"
 
@@ -193,4 +194,22 @@ func TestPercentilesOfAUniform(t *testing.T) {
 		total += c
 	}
 	assert.Equal(t, 200000, total)
+}
+
+// Memory stays flat: ten times the iterations allocate about the same (the kept
+// sample is bounded by Keep; statistics stream).
+func TestSimulationMemoryIsFlat(t *testing.T) {
+	p := vtWithDistributions(vtLoadDemo(t))
+	alloc := func(n int) uint64 {
+		var before, after runtime.MemStats
+		runtime.GC()
+		runtime.ReadMemStats(&before)
+		_, err := Simulate(context.Background(), p, SimOptions{N: n, Seed: 1, Keep: 50_000, Mode: SimFull})
+		require.NoError(t, err)
+		runtime.ReadMemStats(&after)
+		return after.TotalAlloc - before.TotalAlloc
+	}
+	small, large := alloc(100_000), alloc(1_000_000)
+	t.Logf("allocated %d bytes for 100,000 iterations, %d for 1,000,000", small, large)
+	assert.Less(t, float64(large), 1.5*float64(small)+1<<20)
 }
