@@ -152,7 +152,7 @@ func printSimulation(w io.Writer, p *engine.Project, r *engine.Result, res *anal
 	fmt.Fprintln(w)
 	v := res.Value
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintf(tw, "%s\t\n", capitalize(res.ValueWord))
+	fmt.Fprintf(tw, "%s\t\n", voiUpperFirst(res.ValueWord))
 	fmt.Fprintf(tw, "  Base case\t%s\n", f(res.Base))
 	fmt.Fprintf(tw, "  Mean\t%s ± %s (standard error)\n", f(v.Mean), f(v.SE))
 	fmt.Fprintf(tw, "  Standard deviation\t%s\n", f(v.SD))

@@ -149,7 +149,7 @@ func printVOI(w io.Writer, p *engine.Project, rep *analysis.VOIReport, plan *ana
 	if p.Title != "" {
 		fmt.Fprintln(w, p.Title)
 	}
-	fmt.Fprintf(w, "%s as it stands: %s\n\n", capitalize(rep.ValueWord), rep.Format(rep.Without))
+	fmt.Fprintf(w, "%s as it stands: %s\n\n", voiUpperFirst(rep.ValueWord), rep.Format(rep.Without))
 	fmt.Fprintln(w, "Expected value of perfect information (EVPI): what knowing the outcome before the first decision is worth.")
 	line := func(f analysis.EVPIFigure, title string) {
 		if f.Valid {
@@ -189,7 +189,7 @@ func printVOI(w io.Writer, p *engine.Project, rep *analysis.VOIReport, plan *ana
 	fmt.Fprintln(w, engine.Caution)
 }
 
-func capitalize(s string) string {
+func voiUpperFirst(s string) string {
 	if s == "" {
 		return s
 	}
