@@ -82,6 +82,9 @@ func (s *SimResult) Charts(unit string) []*plot.Plot {
 		h.LineStyle = draw.LineStyle{Color: simInk, Width: vg.Points(0.5)}
 		hist.Add(h)
 		simVLine(hist, s.Value.Mean, 0, top)
+		// Half a bin of room at each end, so the outer bars are not cut by the frame.
+		hist.X.Min = s.Histogram.Lo - s.Histogram.Width/2
+		hist.X.Max = s.Histogram.Lo + float64(len(bins))*s.Histogram.Width + s.Histogram.Width/2
 	}
 
 	cum := simPlot("Cumulative: chance of this much or less", simUnit(word, unit), "Cumulative probability")
