@@ -213,3 +213,16 @@ func TestSimulationMemoryIsFlat(t *testing.T) {
 	t.Logf("allocated %d bytes for 100,000 iterations, %d for 1,000,000", small, large)
 	assert.Less(t, float64(large), 1.5*float64(small)+1<<20)
 }
+
+// With drawn variables, the realised payoff's mean (full mode) and the mean of the
+// rolled-back value (parameter mode) estimate the same quantity when risk-neutral:
+// E[payoff] = E_vars[E[payoff | vars]] (law of total expectation).
+func TestFullAndParameterModesAgreeOnTheMean(t *testing.T) {
+	p := vtWithDistributions(vtLoadDemo(t))
+	full, err := Simulate(context.Background(), p, SimOptions{N: 300000, Seed: 21, Mode: SimFull})
+	require.NoError(t, err)
+	params, err := Simulate(context.Background(), p, SimOptions{N: 300000, Seed: 22, Mode: SimParameters})
+	require.NoError(t, err)
+	assert.InDelta(t, params.Value.Mean, full.Value.Mean, 4*math.Hypot(full.Value.SE, params.Value.SE))
+	assert.Greater(t, full.Value.SD, params.Value.SD, "drawing the events adds spread")
+}
