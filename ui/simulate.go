@@ -34,6 +34,7 @@ const (
 	simChartHist  = "Histogram"
 	simChartCum   = "Cumulative"
 	simChartConv  = "Running mean"
+	simChartAlts  = "Alternatives"
 	simChartW     = 680
 	simChartH     = 400
 )
@@ -87,7 +88,7 @@ func newSimPanel(h Host) *simPanel {
 	sp.summary = widget.NewLabel("")
 	sp.summary.Wrapping = fyne.TextWrapWord
 	sp.alts = container.NewVBox()
-	sp.chartKind = widget.NewRadioGroup([]string{simChartHist, simChartCum, simChartConv}, func(string) { sp.drawChart() })
+	sp.chartKind = widget.NewRadioGroup([]string{simChartHist, simChartCum, simChartConv, simChartAlts}, func(string) { sp.drawChart() })
 	sp.chartKind.Horizontal = true
 	sp.chartKind.SetSelected(simChartHist)
 	sp.chart = canvas.NewImageFromImage(nil)
@@ -173,7 +174,10 @@ func (sp *simPanel) run() {
 
 func simChartImage(res *analysis.SimResult, p *engine.Project, kind string) image.Image {
 	plots := res.Charts(p.Currency)
-	i := map[string]int{simChartHist: 0, simChartCum: 1, simChartConv: 2}[kind]
+	i := map[string]int{simChartHist: 0, simChartCum: 1, simChartConv: 2, simChartAlts: 3}[kind]
+	if i >= len(plots) {
+		i = 0
+	}
 	return analysis.SimulationChartImage(plots[i], simChartW, simChartH)
 }
 

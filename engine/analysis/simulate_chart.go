@@ -127,7 +127,59 @@ func (s *SimResult) Charts(unit string) []*plot.Plot {
 			}
 		}
 	}
-	return []*plot.Plot{hist, cum, conv}
+	plots := []*plot.Plot{hist, cum, conv}
+	if len(s.Alternatives) > 1 && s.Decision != nil {
+		plots = append(plots, s.alternativesChart(unit))
+	}
+	return plots
+}
+
+var simSeries = []color.RGBA{
+	{0x1f, 0x4e, 0x79, 0xff}, {0xc5, 0x5a, 0x11, 0xff}, {0x38, 0x76, 0x1d, 0xff},
+	{0x7f, 0x3f, 0x98, 0xff}, {0x8c, 0x6d, 0x1f, 0xff}, {0x44, 0x44, 0x44, 0xff},
+}
+
+// altWord names the alternatives' values: rolled back at the decision in both modes.
+func (s *SimResult) altWord() string {
+	if s.Objective == engine.Minimize {
+		return "Expected cost"
+	}
+	return "Expected value"
+}
+
+// alternativesChart draws each alternative's value at the first decision as a
+// cumulative curve: the further left (benefits) or right (costs), the worse.
+func (s *SimResult) alternativesChart(unit string) *plot.Plot {
+	p := simPlot(fmt.Sprintf("Alternatives at %q: value per iteration", engine.NodeTitle(s.Decision)), simUnit(s.altWord(), unit), "Cumulative probability")
+	for i, a := range s.Alternatives {
+		sorted := sortedFinite(a.Samples)
+		n := len(sorted)
+		if n == 0 {
+			continue
+		}
+		step := max(1, n/500)
+		var pts plotter.XYs
+		for k := 0; k < n; k += step {
+			pts = append(pts, plotter.XY{X: sorted[k], Y: float64(k+1) / float64(n)})
+		}
+		pts = append(pts, plotter.XY{X: sorted[n-1], Y: 1})
+		l, err := plotter.NewLine(pts)
+		if err != nil {
+			continue
+		}
+		l.Color, l.Width = simSeries[i%len(simSeries)], vg.Points(1.5)
+		if i >= len(simSeries) {
+			l.Dashes = []vg.Length{vg.Points(5), vg.Points(2)}
+		}
+		p.Add(l)
+		p.Legend.Add(fmt.Sprintf("%s (best in %.0f %%)", a.Label, 100*a.PBest), l)
+	}
+	// A cumulative curve is high on the right, so the bottom right is free.
+	p.Legend.Top, p.Legend.Left = false, false
+	p.Legend.TextStyle.Font.Size = vg.Points(9)
+	p.Legend.YOffs = vg.Points(6)
+	p.Y.Min, p.Y.Max = 0, 1
+	return p
 }
 
 func simDraw(plots []*plot.Plot, c draw.Canvas) {

@@ -15,7 +15,7 @@ func TestSimulationChartsInEveryFormat(t *testing.T) {
 	res, err := Simulate(context.Background(), vtWithDistributions(vtLoadDemo(t)), SimOptions{N: 20000, Seed: 2, Mode: SimFull})
 	require.NoError(t, err)
 	plots := res.Charts("EUR")
-	require.Len(t, plots, 3)
+	require.Len(t, plots, 4, "histogram, cumulative, running mean, alternatives")
 	assert.Contains(t, plots[0].X.Label.Text, "(EUR)")
 	magic := map[string]string{"png": "\x89PNG", "svg": "<svg", "pdf": "%PDF"}
 	for format, head := range magic {
