@@ -16,7 +16,7 @@ import (
 
 // ExportOptions control a file export of the tree.
 type ExportOptions struct {
-	Theme     string    // light (default), dark or print
+	Theme     string    // light (default), dark or print; files are on white paper except with dark
 	Page      string    // PDF page: A4 (default), A3, Letter, Legal
 	Landscape bool      // PDF page turned sideways
 	Tile      bool      // PDF: full size across several pages instead of fitting one page

@@ -575,6 +575,9 @@ func (lo *Layouter) columns(l *Layout) {
 		if !b.Value.empty() {
 			top = math.Max(top, th.TextPad+lhVal)
 		}
+		if len(b.Problems) > 0 { // the mark sits above the node
+			top = math.Max(top, math.Max(th.NodeSize, th.EndHeight)/2+2*problemMarkSize(th)+2)
+		}
 		if !b.Payoff.empty() {
 			top = math.Max(top, lhVal/2)
 			bottom = math.Max(bottom, lhVal/2)

@@ -47,6 +47,7 @@ type View struct {
 	tipAt     fyne.Position
 	lastSize  fyne.Size
 	pendingIn *engine.Node // FocusNode called before the widget had a size
+	rend      *viewRenderer
 }
 
 const (
@@ -306,14 +307,23 @@ func (v *View) MouseMoved(ev *desktop.MouseEvent) {
 	_, tip := v.TargetAt(ev.Position)
 	if tip != v.tip || (tip != "" && ev.Position != v.tipAt) {
 		v.tip, v.tipAt = tip, ev.Position
-		v.Refresh()
+		v.refreshTip()
 	}
 }
 
 func (v *View) MouseOut() {
 	if v.tip != "" {
 		v.tip = ""
-		v.Refresh()
+		v.refreshTip()
+	}
+}
+
+// refreshTip moves the tooltip without rebuilding the drawing.
+func (v *View) refreshTip() {
+	if r := v.rend; r != nil {
+		r.tooltip(v.Size())
+		fynecanvas.Refresh(r.tipBG)
+		fynecanvas.Refresh(r.tipText)
 	}
 }
 
@@ -359,6 +369,7 @@ func (v *View) CreateRenderer() fyne.WidgetRenderer {
 	r.tipText = fynecanvas.NewText("", color.White)
 	r.tipBG.Hide()
 	r.tipText.Hide()
+	v.rend = r
 	return r
 }
 
