@@ -334,7 +334,7 @@ func TestVariablesTable(t *testing.T) {
 	typeInto(e.variables.entries[0]["name"], "gain")
 	assert.Equal(t, "gain - 50", e.Project().Root.Branches[0].To.Branches[0].To.Payoff, "rename updates every formula")
 
-	test.Tap(e.variables.rows.Objects[1].(*fyne.Container).Objects[5].(interface{ Tapped(*fyne.PointEvent) }).(fyne.Tappable))
+	test.Tap(e.variables.rows.Objects[1].(*fyne.Container).Objects[5].(*widget.Button)) // remove
 	assert.Len(t, e.Project().Variables, 1, "a variable in use is not removed")
 	assert.Contains(t, e.variables.Error(), `node "`)
 	assert.Contains(t, e.variables.Error(), "payoff")
@@ -508,4 +508,69 @@ func TestPanelsAndMenusFromRegistry(t *testing.T) {
 	require.NotNil(t, found)
 	found.Action()
 	assert.True(t, ran)
+}
+
+// findButton looks through the window's overlays (dialogs) for a button.
+func findButton(e *Editor, text string) *widget.Button {
+	var found *widget.Button
+	var walk func(o fyne.CanvasObject)
+	walk = func(o fyne.CanvasObject) {
+		if found != nil || o == nil {
+			return
+		}
+		if b, ok := o.(*widget.Button); ok && b.Text == text {
+			found = b
+			return
+		}
+		switch w := o.(type) {
+		case *fyne.Container:
+			for _, c := range w.Objects {
+				walk(c)
+			}
+		case fyne.Widget:
+			for _, c := range test.WidgetRenderer(w).Objects() {
+				walk(c)
+			}
+		}
+	}
+	for _, o := range e.win.Canvas().Overlays().List() {
+		walk(o)
+	}
+	return found
+}
+
+func TestUnsavedChangesPrompt(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	// Clean: New replaces the project at once.
+	first := e.Project()
+	e.fileNew()
+	assert.NotSame(t, first, e.Project())
+
+	buildLaunchTree(t, e)
+	built := e.Project()
+	e.fileNew()
+	require.NotNil(t, findButton(e, "Don't save"), "a dirty project asks before New")
+	assert.Same(t, built, e.Project(), "nothing is replaced while the question is open")
+	test.Tap(findButton(e, "Cancel"))
+	assert.Same(t, built, e.Project())
+
+	e.fileNew()
+	test.Tap(findButton(e, "Don't save"))
+	assert.NotSame(t, built, e.Project())
+	assert.False(t, e.Dirty())
+}
+
+func TestRecoveryOfferedOnStart(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	require.NoError(t, e.Autosave())
+
+	e2 := newTestEditor(t, EmptyProject())
+	e2.recoveryDir = e.recoveryDir
+	e2.OfferRecovery()
+	yes := findButton(e2, "Yes")
+	require.NotNil(t, yes, "the next start offers to restore")
+	test.Tap(yes)
+	assert.Equal(t, marshalString(t, e.Project()), marshalString(t, e2.Project()))
+	assert.True(t, e2.Dirty(), "restored work is unsaved")
 }
