@@ -90,6 +90,12 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 	e.buildMenus()
 	e.addShortcuts()
 	win.SetCloseIntercept(func() { e.confirmDiscard("closing", func() { e.removeRecovery(); win.Close() }) })
+	win.SetOnDropped(func(_ fyne.Position, uris []fyne.URI) {
+		if len(uris) > 0 && uris[0].Scheme() == "file" {
+			path := uris[0].Path()
+			e.confirmDiscard("opening another project", func() { _ = e.OpenPath(path) })
+		}
+	})
 	e.setProject(p, path, name)
 	return e
 }
