@@ -91,7 +91,7 @@ func (v *variablesTable) rebuild() {
 	v.rows.RemoveAll()
 	v.shown = append([]*engine.Variable(nil), v.e.project.Variables...)
 	v.entries = nil
-	header := container.New(layout.NewGridLayout(len(variableColumns) + 1))
+	header := container.New(variableRow{})
 	for _, c := range variableColumns {
 		header.Add(widget.NewLabelWithStyle(c.title, fyne.TextAlignLeading, fyne.TextStyle{Bold: true}))
 	}
@@ -99,7 +99,7 @@ func (v *variablesTable) rebuild() {
 	v.rows.Add(header)
 	for _, vr := range v.shown {
 		vr := vr
-		row := container.New(layout.NewGridLayout(len(variableColumns) + 1))
+		row := container.New(variableRow{})
 		entries := map[string]*commitEntry{}
 		for _, c := range variableColumns {
 			field := c.field
@@ -134,3 +134,38 @@ func (v *variablesTable) Entry(i int, field string) *widget.Entry { return &v.en
 
 // Error is the message shown above the table (for tests).
 func (v *variablesTable) Error() string { return v.err.Text }
+
+// variableRow lays out one row of the table: name, value, low, high and note
+// share the width by weight (the note gets most), the remove button keeps its own.
+type variableRow struct{}
+
+var variableWeights = []float32{0.22, 0.18, 0.13, 0.13, 0.34}
+
+func (variableRow) Layout(objs []fyne.CanvasObject, size fyne.Size) {
+	if len(objs) == 0 {
+		return
+	}
+	pad := theme.Padding()
+	last := objs[len(objs)-1]
+	bw := last.MinSize().Width
+	free := size.Width - bw - pad*float32(len(objs)-1)
+	x := float32(0)
+	for i, o := range objs[:len(objs)-1] {
+		w := free * variableWeights[i]
+		o.Move(fyne.NewPos(x, 0))
+		o.Resize(fyne.NewSize(w, size.Height))
+		x += w + pad
+	}
+	last.Move(fyne.NewPos(size.Width-bw, 0))
+	last.Resize(fyne.NewSize(bw, size.Height))
+}
+
+func (variableRow) MinSize(objs []fyne.CanvasObject) fyne.Size {
+	var w, h float32
+	for _, o := range objs {
+		m := o.MinSize()
+		w += m.Width
+		h = max(h, m.Height)
+	}
+	return fyne.NewSize(w, h)
+}

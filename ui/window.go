@@ -70,7 +70,7 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 		container.NewTabItem("Problems", e.problems.content),
 	)
 	centre := container.NewHSplit(e.view.Object(), e.side)
-	centre.Offset = 0.68
+	centre.Offset = 0.62
 	main := fyne.CanvasObject(centre)
 	for _, pe := range panels {
 		panel := pe.make(e)
