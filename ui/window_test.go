@@ -574,3 +574,65 @@ func TestRecoveryOfferedOnStart(t *testing.T) {
 	assert.Equal(t, marshalString(t, e.Project()), marshalString(t, e2.Project()))
 	assert.True(t, e2.Dirty(), "restored work is unsaved")
 }
+
+// findEntry looks through the window's dialogs for an entry showing text.
+func findEntry(e *Editor, text string) *widget.Entry {
+	var found *widget.Entry
+	var walk func(o fyne.CanvasObject)
+	walk = func(o fyne.CanvasObject) {
+		if found != nil || o == nil {
+			return
+		}
+		if en, ok := o.(*widget.Entry); ok && en.Text == text {
+			found = en
+			return
+		}
+		switch w := o.(type) {
+		case *fyne.Container:
+			for _, c := range w.Objects {
+				walk(c)
+			}
+		case fyne.Widget:
+			for _, c := range test.WidgetRenderer(w).Objects() {
+				walk(c)
+			}
+		}
+	}
+	for _, o := range e.win.Canvas().Overlays().List() {
+		walk(o)
+	}
+	return found
+}
+
+func TestSaveAsDialog(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	dir := t.TempDir()
+	first := filepath.Join(dir, "first.ramify.json")
+	require.NoError(t, e.SaveTo(first))
+	require.NoError(t, e.Apply(&engine.SetNodeField{Node: e.Project().Root, Field: engine.FieldName, Value: "Second"}))
+
+	saved := false
+	e.fileSaveAs(func(ok bool) { saved = ok })
+	folder, file := findEntry(e, dir), findEntry(e, "first.ramify.json")
+	require.NotNil(t, folder, "the folder of the current file is offered")
+	require.NotNil(t, file)
+	file.SetText("second")
+	test.Tap(findButton(e, "Save"))
+	assert.True(t, saved)
+	second := filepath.Join(dir, "second.ramify.json")
+	assert.Equal(t, second, e.Path(), "the .ramify.json ending is added")
+	data, err := os.ReadFile(second)
+	require.NoError(t, err)
+	assert.Equal(t, marshalString(t, e.Project()), string(data))
+	assert.False(t, e.Dirty())
+
+	// Saving as an existing file asks first.
+	e.fileSaveAs(func(ok bool) { saved = ok })
+	findEntry(e, "second.ramify.json").SetText("first.ramify.json")
+	test.Tap(findButton(e, "Save"))
+	require.NotNil(t, findButton(e, "No"), "replacing a file asks")
+	test.Tap(findButton(e, "No"))
+	assert.False(t, saved)
+	assert.Equal(t, second, e.Path())
+}
