@@ -16,8 +16,17 @@ import (
 
 // The tree-building commands of the Tree and Edit menus and their keys.
 
+// commitPending applies what is typed in a focused field before another edit,
+// so a toolbar button or shortcut never throws away half-entered text.
+func (e *Editor) commitPending() {
+	if ce, ok := e.win.Canvas().Focused().(*commitEntry); ok {
+		ce.finish()
+	}
+}
+
 func (e *Editor) run(c engine.Command, err error, after func()) {
 	if err == nil {
+		e.commitPending()
 		err = e.Apply(c)
 	}
 	if err != nil {
@@ -97,11 +106,13 @@ func (e *Editor) setCollapsed(collapsed bool) {
 }
 
 func (e *Editor) undo() {
+	e.commitPending()
 	sel, ok, err := e.history.Undo(e.project, e.sel)
 	e.afterReplay(sel, ok, err, "Undo")
 }
 
 func (e *Editor) redo() {
+	e.commitPending()
 	sel, ok, err := e.history.Redo(e.project, e.sel)
 	e.afterReplay(sel, ok, err, "Redo")
 }

@@ -33,7 +33,8 @@ func EmptyProject() *engine.Project {
 	return p
 }
 
-func demoTitle(file string) string {
+// DemoTitle is a demo file name as a title: "chiller-cover.ramify.json" → "Chiller cover".
+func DemoTitle(file string) string {
 	s := strings.ReplaceAll(strings.TrimSuffix(file, ".ramify.json"), "-", " ")
 	return strings.ToUpper(s[:1]) + s[1:]
 }
@@ -51,7 +52,7 @@ func (e *Editor) fileNewDemo(d assets.Demo) {
 			e.ShowError("Cannot open the demo", err)
 			return
 		}
-		e.setProject(p, "", demoTitle(d.Name)+" (demo)")
+		e.setProject(p, "", DemoTitle(d.Name)+" (demo)")
 	})
 }
 

@@ -101,7 +101,7 @@ func (e *Editor) buildMenus() {
 	var demos []*fyne.MenuItem
 	for _, d := range assets.Demos() {
 		d := d
-		demos = append(demos, fyne.NewMenuItem(demoTitle(d.Name), func() { e.fileNewDemo(d) }))
+		demos = append(demos, fyne.NewMenuItem(DemoTitle(d.Name), func() { e.fileNewDemo(d) }))
 	}
 	newDemo := fyne.NewMenuItem("New from demo", nil)
 	newDemo.ChildMenu = fyne.NewMenu("", demos...)

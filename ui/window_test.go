@@ -636,3 +636,18 @@ func TestSaveAsDialog(t *testing.T) {
 	assert.False(t, saved)
 	assert.Equal(t, second, e.Path())
 }
+
+func TestPendingTextCommittedBeforeOtherEdits(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	root := e.Project().Root
+	name := e.inspector.Field(engine.FieldName).entry
+	e.win.Canvas().Focus(name)
+	name.SetText("")
+	test.Type(name, "Typed, not entered")
+	test.Tap(e.Button("branch"))
+	assert.Equal(t, "Typed, not entered", root.Name, "the typed name is applied first")
+	assert.Len(t, root.Branches, 3)
+	test.Tap(e.Button("undo"))
+	assert.Len(t, root.Branches, 2)
+	assert.Equal(t, "Typed, not entered", root.Name, "undo takes back one edit at a time")
+}

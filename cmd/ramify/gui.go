@@ -35,7 +35,7 @@ func openWindow(args []string, stderr io.Writer) int {
 		p, name = ui.EmptyProject(), "Untitled"
 		if demos := assets.Demos(); len(demos) > 0 {
 			if dp, err := engine.Parse(demos[0].Data, demos[0].Name); err == nil {
-				p, name = dp, demos[0].Name+" (demo)"
+				p, name = dp, ui.DemoTitle(demos[0].Name)+" (demo)"
 			}
 		}
 	}
