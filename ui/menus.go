@@ -1,8 +1,14 @@
 package ui
 
 import (
+	"fmt"
+	"strings"
+
 	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/container"
+	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/driver/desktop"
+	"fyne.io/fyne/v2/widget"
 
 	"github.com/ramify-app/ramify/assets"
 	"github.com/ramify-app/ramify/engine"
@@ -151,11 +157,12 @@ func (e *Editor) buildMenus() {
 		e.item("Zoom out", sc(21), func() { e.view.ZoomOut() }),
 		e.item("Fit to window", sc(22), func() { e.view.ZoomFit() }),
 	)
+	help := fyne.NewMenu("Help", fyne.NewMenuItem("Keyboard shortcuts", e.showKeys))
 	menus := []*fyne.Menu{file, edit, tree, view}
 	for _, me := range menuEntries {
 		me := me
 		var target *fyne.Menu
-		for _, m := range menus {
+		for _, m := range append(menus, help) {
 			if m.Label == me.Menu {
 				target = m
 			}
@@ -169,6 +176,7 @@ func (e *Editor) buildMenus() {
 			e.win.Canvas().AddShortcut(me.Shortcut, func(fyne.Shortcut) { me.Action(e) })
 		}
 	}
+	menus = append(menus, help) // Help stays last; entries registered for "Help" join it
 	e.menu = fyne.NewMainMenu(menus...)
 	e.win.SetMainMenu(e.menu)
 }
@@ -186,4 +194,35 @@ func (e *Editor) updateUndoMenu() {
 		e.redoItem.Label = "Redo " + e.history.RedoName()
 	}
 	e.menu.Refresh()
+}
+
+// keyHelp lists the editor's keys in plain words ("Ctrl" is Cmd on macOS).
+var keyHelp = [][2]string{
+	{"Arrow keys", "Move the selection: left to the parent, right to a child, up and down among siblings"},
+	{"Enter or F2", "Edit the selected value in place (Enter applies, Escape cancels)"},
+	{"Ctrl+B / Insert", "Add branch"},
+	{"Ctrl+Shift+B", "Add sibling"},
+	{"Ctrl+1 / 2 / 3", "Make decision / chance / end"},
+	{"Delete", "Delete subtree"},
+	{"Alt+Up / Alt+Down", "Move up / down among siblings"},
+	{"Alt+Left / Alt+Right", "Collapse / expand"},
+	{"Ctrl+C / X / V", "Copy / cut / paste a subtree (as project-format JSON, also between windows)"},
+	{"Ctrl+D", "Duplicate subtree"},
+	{"Ctrl+Z", "Undo"},
+	{"Ctrl+Shift+Z or Ctrl+Y", "Redo"},
+	{"Ctrl+N / O / S / Shift+S", "New / Open / Save / Save as"},
+	{"Ctrl+, ", "Project settings"},
+	{"Ctrl+= / - / 0", "Zoom in / out / fit"},
+}
+
+func (e *Editor) showKeys() {
+	var b strings.Builder
+	for _, k := range keyHelp {
+		fmt.Fprintf(&b, "**%s** — %s\n\n", k[0], k[1])
+	}
+	text := widget.NewRichTextFromMarkdown(b.String())
+	text.Wrapping = fyne.TextWrapWord
+	d := dialog.NewCustom("Keyboard shortcuts", "Close", container.NewVScroll(text), e.win)
+	d.Resize(fyne.NewSize(620, 560))
+	d.Show()
 }
