@@ -71,6 +71,7 @@ func (pl *problemsList) choose(id int) {
 	}
 	e.setSelection(t, true)
 	e.side.SelectIndex(0)
+	e.win.Canvas().Unfocus() // the arrow keys go back to moving the selection
 }
 
 func (pl *problemsList) update() {
