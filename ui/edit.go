@@ -311,7 +311,10 @@ func (e *Editor) editInPlace(t Target) {
 		size = fyne.NewSize(200, entry.MinSize().Height)
 	}
 	width := max(size.Width+40, caption.MinSize().Width+theme.Padding()*4, 260)
-	pop.ShowAtPosition(pos)
+	// Put the entry itself (below the caption) across the middle of the field.
+	pad := theme.Padding()
+	y := pos.Y + size.Height/2 - entry.MinSize().Height/2 - caption.MinSize().Height - 2*pad
+	pop.ShowAtPosition(fyne.NewPos(max(0, pos.X-pad), max(0, y)))
 	pop.Resize(fyne.NewSize(width, box.MinSize().Height+theme.Padding()*2))
 	e.inplace, e.inplaceEntry = pop, entry
 	e.win.Canvas().Focus(entry)

@@ -71,9 +71,29 @@ func (c *canvasView) SetOnActivate(f func(Target)) {
 }
 
 func (c *canvasView) FieldPosition(t Target) (fyne.Position, fyne.Size, bool) {
-	pos, size, ok := c.v.ScreenRect(toCanvas(t))
+	ct := toCanvas(t)
+	pos, size, ok := c.v.ScreenRect(ct)
 	if !ok {
 		return pos, size, false
+	}
+	// ScreenRect is the whole box of the node (with its branch texts); find the
+	// field's own hit region inside it so the entry covers just that text.
+	const step = 3
+	var lo, hi fyne.Position
+	found := false
+	for y := pos.Y; y <= pos.Y+size.Height; y += step {
+		for x := pos.X; x <= pos.X+size.Width; x += step {
+			if got, _ := c.v.TargetAt(fyne.NewPos(x, y)); got == ct {
+				if !found {
+					lo, hi, found = fyne.NewPos(x, y), fyne.NewPos(x, y), true
+				}
+				lo = fyne.NewPos(min(lo.X, x), min(lo.Y, y))
+				hi = fyne.NewPos(max(hi.X, x), max(hi.Y, y))
+			}
+		}
+	}
+	if found {
+		pos, size = lo.Subtract(fyne.NewPos(step, step)), fyne.NewSize(hi.X-lo.X+2*step, hi.Y-lo.Y+2*step)
 	}
 	abs := fyne.CurrentApp().Driver().AbsolutePositionForObject(c.v)
 	return abs.Add(pos), size, true
