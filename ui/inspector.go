@@ -15,15 +15,16 @@ import (
 
 // inspector shows and edits the selected node and the branch leading to it.
 type inspector struct {
-	e       *Editor
-	content *fyne.Container
-	heading *widget.Label
-	value   *widget.Label
-	kind    *widget.RadioGroup
-	fields  map[string]*formField // name, note, label, probability, cash, payoff
-	branch  *fyne.Container       // the incoming branch's fields
-	payoff  *fyne.Container
-	showing bool // suppresses kind-change callbacks while filling in
+	e        *Editor
+	content  *fyne.Container
+	heading  *widget.Label
+	value    *widget.Label
+	kind     *widget.RadioGroup
+	fields   map[string]*formField // name, note, label, probability, cash, payoff
+	branch   *fyne.Container       // the incoming branch's fields
+	payoff   *fyne.Container
+	showing  bool // suppresses kind-change callbacks while filling in
+	nodePart []fyne.CanvasObject
 }
 
 // formField is an entry that commits on Enter or when it loses focus, with its
@@ -142,8 +143,26 @@ func newInspector(e *Editor) *inspector {
 	label, prob, cash := branchField(engine.FieldLabel), branchField(engine.FieldProbability), branchField(engine.FieldCash)
 	in.branch = container.NewVBox(widget.NewSeparator(), label.box, prob.box, cash.box)
 	in.payoff = container.NewVBox(payoff.box)
-	in.content = container.NewVBox(in.heading, in.value, in.kind, name.box, note.box, in.payoff, in.branch)
+	in.nodePart = []fyne.CanvasObject{in.kind, name.box, note.box, in.payoff}
+	in.content = container.NewVBox()
+	in.order(false)
 	return in
+}
+
+// order puts the branch's fields first when a branch text is selected, the
+// node's fields first otherwise.
+func (in *inspector) order(branchFirst bool) {
+	objs := []fyne.CanvasObject{in.heading, in.value}
+	if branchFirst {
+		objs = append(append(objs, in.branch), in.nodePart...)
+	} else {
+		objs = append(append(objs, in.nodePart...), in.branch)
+	}
+	if len(in.content.Objects) == len(objs) && in.content.Objects[2] == objs[2] {
+		return
+	}
+	in.content.Objects = objs
+	in.content.Refresh()
 }
 
 // Field returns the entry for a field name (for tests).
@@ -177,9 +196,11 @@ func (in *inspector) show() {
 	parent, i := r.ParentOf(n)
 	if parent == nil {
 		in.branch.Hide()
+		in.order(false)
 		return
 	}
 	in.branch.Show()
+	in.order(e.sel.Branch >= 0)
 	b := parent.Branches[i]
 	in.fields[engine.FieldLabel].set(b.Label)
 	in.fields[engine.FieldProbability].set(b.Probability)
