@@ -201,6 +201,10 @@ func (in *inspector) show() {
 	}
 	in.branch.Show()
 	in.order(e.sel.Branch >= 0)
+	if e.sel.Branch >= 0 {
+		in.heading.SetText(fmt.Sprintf("Branch %q of %s, leading to %s node %q",
+			engine.BranchTitle(parent, i), engine.NodeTitle(parent), n.Kind, engine.NodeTitle(n)))
+	}
 	b := parent.Branches[i]
 	in.fields[engine.FieldLabel].set(b.Label)
 	in.fields[engine.FieldProbability].set(b.Probability)
