@@ -690,3 +690,25 @@ func TestRandomEditingSession(t *testing.T) {
 	}
 	assert.Equal(t, start, marshalString(t, e.Project()))
 }
+
+func TestProjectSettingsDialog(t *testing.T) {
+	e := newTestEditor(t, EmptyProject())
+	buildLaunchTree(t, e)
+	e.projectSettings()
+	title := findEntry(e, "Untitled decision")
+	require.NotNil(t, title)
+	title.SetText("Launch review")
+	test.Tap(findButton(e, "Apply"))
+	assert.Equal(t, "Launch review", e.Project().Title)
+	assert.Contains(t, e.StatusText(), "maximize")
+
+	e.projectSettings()
+	findEntry(e, "0").SetText("two")
+	test.Tap(findButton(e, "Apply"))
+	assert.Equal(t, 0, e.Project().Decimals, "a bad number is refused")
+	for e.win.Canvas().Overlays().Top() != nil {
+		e.win.Canvas().Overlays().Remove(e.win.Canvas().Overlays().Top())
+	}
+	test.Tap(e.Button("undo"))
+	assert.Equal(t, "Untitled decision", e.Project().Title, "settings are one undoable change")
+}
