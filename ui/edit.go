@@ -141,7 +141,7 @@ func (e *Editor) moveSelection(key fyne.KeyName) {
 	switch key {
 	case fyne.KeyLeft:
 		if parent != nil {
-			e.setSelection(Target{Node: parent, Branch: -1, Field: "node"}, true)
+			e.setSelection(Target{Node: parent, Branch: -1, Field: "node"})
 		}
 	case fyne.KeyRight:
 		if len(n.Branches) > 0 && !n.Collapsed {
@@ -149,15 +149,15 @@ func (e *Editor) moveSelection(key fyne.KeyName) {
 			if ch := e.result.Choice(n); ch >= 0 {
 				c = ch
 			}
-			e.setSelection(Target{Node: n.Branches[c].To, Branch: -1, Field: "node"}, true)
+			e.setSelection(Target{Node: n.Branches[c].To, Branch: -1, Field: "node"})
 		}
 	case fyne.KeyUp:
 		if parent != nil && i > 0 {
-			e.setSelection(Target{Node: parent.Branches[i-1].To, Branch: -1, Field: "node"}, true)
+			e.setSelection(Target{Node: parent.Branches[i-1].To, Branch: -1, Field: "node"})
 		}
 	case fyne.KeyDown:
 		if parent != nil && i+1 < len(parent.Branches) {
-			e.setSelection(Target{Node: parent.Branches[i+1].To, Branch: -1, Field: "node"}, true)
+			e.setSelection(Target{Node: parent.Branches[i+1].To, Branch: -1, Field: "node"})
 		}
 	}
 }

@@ -69,7 +69,7 @@ func (pl *problemsList) choose(id int) {
 	case pr.Field == engine.FieldPayoff:
 		t.Field = engine.FieldPayoff
 	}
-	e.setSelection(t, true)
+	e.setSelection(t)
 	e.side.SelectIndex(0)
 	e.win.Canvas().Unfocus() // the arrow keys go back to moving the selection
 }

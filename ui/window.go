@@ -56,8 +56,8 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 		writeFile: func(path string, data []byte) error { return engine.WriteFileAtomic(path, data, true) }}
 	e.recoveryDir = defaultRecoveryDir(a)
 	e.view = newTreeView()
-	e.view.SetOnSelect(func(t Target) { e.setSelection(t, false) })
-	e.view.SetOnActivate(func(t Target) { e.setSelection(t, false); e.editInPlace(t) })
+	e.view.SetOnSelect(func(t Target) { e.setSelection(t) })
+	e.view.SetOnActivate(func(t Target) { e.setSelection(t); e.editInPlace(t) })
 	e.inspector = newInspector(e)
 	e.variables = newVariablesTable(e)
 	e.problems = newProblemsList(e)
@@ -107,7 +107,7 @@ func (e *Editor) Project() *engine.Project   { return e.project }
 func (e *Editor) Result() *engine.Result     { return e.result }
 func (e *Editor) SelectedNode() *engine.Node { return e.selectedNode() }
 func (e *Editor) SelectNode(n *engine.Node) {
-	e.setSelection(Target{Node: n, Branch: -1, Field: "node"}, true)
+	e.setSelection(Target{Node: n, Branch: -1, Field: "node"})
 }
 func (e *Editor) ShowError(title string, err error) { showError(e.win, title, err) }
 
@@ -203,7 +203,7 @@ func (e *Editor) updateTitle() { e.win.SetTitle(e.title()) }
 
 // ---- selection ----
 
-func (e *Editor) setSelection(t Target, focus bool) {
+func (e *Editor) setSelection(t Target) {
 	if t.Node == nil {
 		return
 	}
@@ -211,10 +211,7 @@ func (e *Editor) setSelection(t Target, focus bool) {
 		t.Field = "node"
 	}
 	e.sel = t
-	e.view.Select(t)
-	if focus {
-		e.view.FocusNode(e.selectedNode())
-	}
+	e.view.Select(t) // pans the least distance that shows it; the zoom stays
 	e.inspector.show()
 }
 
