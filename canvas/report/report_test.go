@@ -1,0 +1,310 @@
+package report
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/shopspring/decimal"
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"github.com/ramify-app/ramify/engine"
+)
+
+var demoFile = filepath.Join("..", "..", "assets", "demos", "chiller-cover.ramify.json")
+
+func loadDemo(t testing.TB) (*engine.Project, *engine.Result) {
+	p, err := engine.Load(demoFile)
+	require.NoError(t, err)
+	r := engine.Evaluate(p)
+	require.True(t, r.Valid(), "%v", r.Problems)
+	return p, r
+}
+
+// poppler runs a poppler-utils tool on a PDF; the tests need a real reader.
+func poppler(t *testing.T, tool string, args ...string) string {
+	t.Helper()
+	if _, err := exec.LookPath(tool); err != nil {
+		t.Skipf("%s (poppler-utils) is not installed", tool)
+	}
+	out, err := exec.Command(tool, args...).CombinedOutput()
+	require.NoError(t, err, string(out))
+	return string(out)
+}
+
+func writeReport(t *testing.T, p *engine.Project, r *engine.Result, o Options) string {
+	t.Helper()
+	path := filepath.Join(t.TempDir(), "report.pdf")
+	require.NoError(t, WriteFile(context.Background(), path, p, r, o))
+	return path
+}
+
+func pdfPages(t *testing.T, path string) int {
+	info := poppler(t, "pdfinfo", path)
+	m := regexp.MustCompile(`(?m)^Pages:\s+(\d+)`).FindStringSubmatch(info)
+	require.NotNil(t, m, info)
+	n, err := strconv.Atoi(m[1])
+	require.NoError(t, err)
+	return n
+}
+
+// squash joins wrapped lines so sentences can be searched whole.
+func squash(s string) string { return strings.Join(strings.Fields(s), " ") }
+
+// engineFigures is every value the engine can print for the project: the report
+// may show no other amount.
+func engineFigures(r *engine.Result) map[string]bool {
+	set := map[string]bool{r.Format(r.Value()): true}
+	for _, n := range r.Nodes {
+		set[r.Format(r.ValueOf(n))] = true
+		set[r.Format(r.DisplayValue(n))] = true
+		set[r.Format(r.PathValue(n))] = true
+		set[r.Format(r.Payoff(n))] = true
+		for i := range n.Branches {
+			set[r.Format(r.Cash(n, i))] = true
+			set[r.Format(r.BranchValue(n, i))] = true
+		}
+	}
+	for _, row := range r.Paths() {
+		set[r.Format(row.Payoff)] = true
+		set[r.Format(row.Contribution)] = true
+	}
+	if r.RiskActive() {
+		set[r.Format(decimal.NewFromFloat(r.Tolerance()))] = true
+	}
+	return set
+}
+
+func TestReportOpensInPoppler(t *testing.T) {
+	demo, demoR := loadDemo(t)
+	averse, _ := loadDemo(t)
+	averse.Risk = engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "200000"}
+	tests := []struct {
+		name string
+		p    *engine.Project
+		opts Options
+	}{
+		{"demo on A4, print theme", demo, Options{PreparedBy: "R. Adeyemi"}},
+		{"demo on Letter, colour theme", demo, Options{Page: "Letter", Theme: "colour"}},
+		{"demo with a risk attitude", averse, Options{}},
+	}
+	_ = demoR
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			r := engine.Evaluate(tc.p)
+			require.True(t, r.Valid())
+			path := writeReport(t, tc.p, r, tc.opts)
+			pages := pdfPages(t, path)
+			text := poppler(t, "pdftotext", "-enc", "UTF-8", path, "-")
+			flat := squash(text)
+
+			// Every page carries "Page i of N" with N the reader's page count.
+			for i := 1; i <= pages; i++ {
+				assert.Contains(t, flat, fmt.Sprintf("Page %d of %d", i, pages))
+			}
+			assert.NotContains(t, flat, fmt.Sprintf("Page %d of", pages+1))
+			if tc.opts.Page == "Letter" {
+				assert.Contains(t, poppler(t, "pdfinfo", path), "612 x 792 pts")
+			} else {
+				assert.Contains(t, poppler(t, "pdfinfo", path), "595.28 x 841.89 pts")
+			}
+
+			assert.Contains(t, flat, squash(RootSentence(r)))
+			assert.Contains(t, flat, r.Format(r.Value()))
+			for _, s := range r.Recommendation() {
+				assert.Contains(t, flat, squash(s))
+			}
+			assert.Contains(t, flat, engine.Caution)
+			assert.Contains(t, flat, tc.p.Title)
+			if tc.opts.PreparedBy != "" {
+				assert.Contains(t, flat, "Prepared by "+tc.opts.PreparedBy)
+			}
+			for _, row := range r.Paths() {
+				assert.Contains(t, flat, r.Format(row.Payoff))
+				assert.Contains(t, flat, r.Format(row.Contribution))
+			}
+			for _, v := range tc.p.Variables {
+				assert.Contains(t, flat, v.Name)
+			}
+
+			// Every amount printed with the unit is one the engine computed.
+			figures := engineFigures(r)
+			amounts := regexp.MustCompile(`−?\d[\d,]*(?:\.\d+)? `+regexp.QuoteMeta(tc.p.Currency)).FindAllString(flat, -1)
+			require.NotEmpty(t, amounts)
+			for _, a := range amounts {
+				assert.True(t, figures[a], "%q is not a figure the engine computed", a)
+			}
+		})
+	}
+}
+
+func TestReportRejectsBadInput(t *testing.T) {
+	p, r := loadDemo(t)
+	tests := []struct {
+		name string
+		opts Options
+		want string
+	}{
+		{"page", Options{Page: "A5"}, `page "A5"`},
+		{"theme", Options{Theme: "neon"}, `theme "neon"`},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			path := filepath.Join(t.TempDir(), "r.pdf")
+			assert.ErrorContains(t, WriteFile(context.Background(), path, p, r, tc.opts), tc.want)
+			assert.NoFileExists(t, path)
+		})
+	}
+	broken := p.Clone()
+	broken.Root.Branches[0].Cash = "rent_week *"
+	br := engine.Evaluate(broken)
+	path := filepath.Join(t.TempDir(), "r.pdf")
+	require.NoError(t, os.WriteFile(path, []byte("earlier report"), 0o644))
+	assert.ErrorContains(t, WriteFile(context.Background(), path, broken, br, Options{}), "problem")
+	data, err := os.ReadFile(path)
+	require.NoError(t, err)
+	assert.Equal(t, "earlier report", string(data), "a failed report must not replace the earlier file")
+}
+
+// A registered analysis section lands between the path table and the assumptions,
+// with its chart drawn.
+func TestAnalysisSectionRegistration(t *testing.T) {
+	p, r := loadDemo(t)
+	saved := AnalysisSections
+	defer func() { AnalysisSections = saved }()
+	RegisterAnalysis(Builder{Name: "test chart", Build: func(in *Input) ([]Section, error) {
+		pl := plot.New()
+		pl.Title.Text = "Cumulative chance"
+		line, err := plotter.NewLine(plotter.XYs{{X: 0, Y: 0}, {X: 1, Y: 1}})
+		if err != nil {
+			return nil, err
+		}
+		pl.Add(line)
+		return []Section{{Title: "Registered analysis", Paragraphs: []string{"Shown by a registered builder."}, Chart: pl}}, nil
+	}})
+	path := writeReport(t, p, r, Options{})
+	flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
+	at := strings.Index(flat, "Registered analysis")
+	require.GreaterOrEqual(t, at, 0)
+	assert.Less(t, strings.Index(flat, "Outcomes (path table)"), at)
+	assert.Less(t, at, strings.Index(flat, "Assumptions"))
+	assert.Contains(t, flat, "Cumulative chance")
+}
+
+// A tree drawer given in the options gets a whole page for the diagram.
+func TestTreeDrawerIsUsed(t *testing.T) {
+	p, r := loadDemo(t)
+	var got vg.Rectangle
+	calls := 0
+	opts := Options{Tree: func(c vg.Canvas, rect vg.Rectangle, pp *engine.Project, rr *engine.Result) error {
+		calls++
+		got = rect
+		assert.Same(t, p, pp)
+		assert.Same(t, r, rr)
+		return nil
+	}}
+	path := writeReport(t, p, r, opts)
+	assert.Equal(t, 1, calls)
+	assert.Greater(t, float64(got.Max.Y-got.Min.Y), 400.0, "the diagram gets most of a page")
+	assert.NotContains(t, squash(poppler(t, "pdftotext", path, "-")), "Decision tree (outline)")
+}
+
+func TestColumnWidths(t *testing.T) {
+	tests := []struct {
+		name    string
+		natural []vg.Length
+		total   vg.Length
+		want    []vg.Length
+	}{
+		{"fits", []vg.Length{10, 20}, 100, []vg.Length{10, 20}},
+		{"wide column shares what is left", []vg.Length{10, 300, 20}, 100, []vg.Length{10, 70, 20}},
+		{"two wide columns split evenly", []vg.Length{10, 300, 200}, 110, []vg.Length{10, 50, 50}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			assert.Equal(t, tc.want, columnWidths(tc.natural, tc.total))
+		})
+	}
+}
+
+// bigProject grows a random valid tree of about n nodes with variables and
+// formulas, deterministically from seed.
+func bigProject(n int, seed uint64) *engine.Project {
+	rng := rand.New(rand.NewPCG(seed, 7))
+	p := &engine.Project{Title: "Generated plant upgrade", Objective: engine.Maximize, Currency: "$", Decimals: 0,
+		Variables: []*engine.Variable{{Name: "base", Value: "12000", Low: "9000", High: "15000", Note: "Base margin"},
+			{Name: "k", Value: "1.5", Low: "1", High: "2", Note: "Scale"}}}
+	id := 0
+	next := func(kind engine.Kind) *engine.Node {
+		id++
+		return &engine.Node{ID: fmt.Sprintf("n%d", id), Kind: kind, Name: fmt.Sprintf("%s %d", kind, id)}
+	}
+	p.Root = next(engine.Decision)
+	frontier := []*engine.Node{p.Root}
+	count := 1
+	for len(frontier) > 0 {
+		node := frontier[0]
+		frontier = frontier[1:]
+		kids := 2 + rng.IntN(2)
+		for i := 0; i < kids; i++ {
+			kind := engine.End
+			if count+len(frontier)*2 < n {
+				kind = []engine.Kind{engine.Decision, engine.Chance}[rng.IntN(2)]
+			}
+			c := next(kind)
+			count++
+			b := &engine.Branch{Label: fmt.Sprintf("option %d", i+1), To: c, Cash: fmt.Sprintf("%d", rng.IntN(2000)-1000)}
+			if node.Kind == engine.Chance {
+				b.Probability = "rest"
+				if i < kids-1 {
+					b.Probability = fmt.Sprintf("0.%d", 1+rng.IntN(3))
+				}
+			}
+			if kind == engine.End {
+				c.Payoff = fmt.Sprintf("base * k - %d", rng.IntN(20000))
+			} else {
+				frontier = append(frontier, c)
+			}
+			node.Branches = append(node.Branches, b)
+		}
+	}
+	return p
+}
+
+// The 1,000-node report, every section: go test -bench Report ./canvas/report/
+func BenchmarkReport1000Nodes(b *testing.B) {
+	p := bigProject(1000, 1)
+	r := engine.Evaluate(p)
+	require.True(b, r.Valid(), "%v", r.Problems)
+	b.ReportMetric(float64(len(r.Nodes)), "nodes")
+	for b.Loop() {
+		var buf bytes.Buffer
+		require.NoError(b, Write(context.Background(), &buf, p, r, Options{Date: time.Unix(0, 0)}))
+	}
+}
+
+func TestBigReportReads(t *testing.T) {
+	p := bigProject(1000, 2)
+	r := engine.Evaluate(p)
+	require.True(t, r.Valid(), "%v", r.Problems)
+	require.GreaterOrEqual(t, len(r.Nodes), 1000)
+	path := writeReport(t, p, r, Options{})
+	pages := pdfPages(t, path)
+	assert.Greater(t, pages, 10)
+	flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
+	assert.Contains(t, flat, fmt.Sprintf("Page %d of %d", pages, pages))
+	assert.Contains(t, flat, r.Format(r.Value()))
+}

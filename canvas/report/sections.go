@@ -1,0 +1,244 @@
+package report
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/shopspring/decimal"
+	"gonum.org/v1/plot/vg"
+
+	"github.com/ramify-app/ramify/engine"
+)
+
+// Each section is a small function of the evaluated project. Every number is
+// printed with engine.FormatValue (through Result.Format) or
+// engine.FormatProbability, so the report shows exactly what the app shows.
+
+// RootSentence states the root value in words, as the title page and the
+// recommendation print it.
+func RootSentence(r *engine.Result) string {
+	s := fmt.Sprintf("Following the recommendation, the %s is %s.", r.ValueWord(), r.Format(r.Value()))
+	if r.RiskActive() {
+		s += fmt.Sprintf(" Its expected value is %s (risk tolerance %s).", r.Format(r.ValueOf(r.Project.Root)),
+			r.Format(decimal.NewFromFloat(r.Tolerance())))
+	}
+	return s
+}
+
+func titlePage(in *Input) ([]Section, error) {
+	p, r, o := in.Project, in.Result, in.Options
+	var paras []string
+	if by := preparedBy(p, o); by != "" {
+		paras = append(paras, "Prepared by "+by)
+	}
+	paras = append(paras, "Date: "+o.Date.Format("2 January 2006"))
+	goal := "highest benefit"
+	if p.Objective == engine.Minimize {
+		goal = "lowest cost"
+	}
+	paras = append(paras, fmt.Sprintf("The tree has %d nodes and %d outcomes; the decisions aim for the %s. Values are in %s.",
+		len(r.Nodes), len(r.Paths()), goal, defaultTo(p.Currency, "the project's units")))
+	paras = append(paras, RootSentence(r))
+	if strings.TrimSpace(p.Notes) != "" {
+		paras = append(paras, "Notes", strings.TrimSpace(p.Notes))
+	}
+	return []Section{{Title: reportTitle(p), Paragraphs: paras}}, nil
+}
+
+func recommendation(in *Input) ([]Section, error) {
+	r := in.Result
+	paras := []string{RootSentence(in.Result)}
+	rec := r.Recommendation()
+	if len(rec) == 0 {
+		rec = []string{"The tree has no decision to make: the value above is what to expect."}
+	}
+	paras = append(paras, rec...)
+	return []Section{{Title: "Recommendation", Paragraphs: paras}}, nil
+}
+
+func treeSection(in *Input) ([]Section, error) {
+	p, r := in.Project, in.Result
+	if in.Options.Tree != nil {
+		draw := in.Options.Tree
+		return []Section{{Title: "Decision tree", NewPage: true,
+			Paragraphs: []string{"The recommended path is highlighted; the values shown are " + r.ValueWord() + "s rolled back from the ends."},
+			Figure:     func(c vg.Canvas, rect vg.Rectangle) error { return draw(c, rect, p, r) }}}, nil
+	}
+	return []Section{outline(r)}, nil
+}
+
+// outline lists the tree as an indented table, for when no diagram is drawn.
+func outline(r *engine.Result) Section {
+	t := &Table{Header: []string{"Branch / node", "Probability", "Cash", "Value"}, Align: []Align{Left, Right, Right, Right}}
+	for _, n := range r.Nodes {
+		parent, bi := r.ParentOf(n)
+		name := fmt.Sprintf("%s %s", kindMark(n.Kind), engine.NodeTitle(n))
+		prob, cash := "", ""
+		if parent != nil {
+			name = engine.BranchTitle(parent, bi) + " → " + name
+			if parent.Kind == engine.Chance {
+				prob = engine.FormatProbability(r.Probability(parent, bi))
+			}
+			if c := r.Cash(parent, bi); !c.IsZero() {
+				cash = r.Format(c)
+			}
+		}
+		value := r.Format(r.DisplayValue(n))
+		if n.Kind == engine.End {
+			value = r.Format(r.PathValue(n))
+		}
+		t.Rows = append(t.Rows, []string{name, prob, cash, value})
+		t.Highlight = append(t.Highlight, r.OnPolicy(n))
+		t.Indent = append(t.Indent, r.Depth(n))
+	}
+	t.Note = "■ decision, ● chance, ◄ end. Bold rows are on the recommended path. An end's value is its path payoff."
+	return Section{Title: "Decision tree (outline)", Table: t}
+}
+
+func kindMark(k engine.Kind) string {
+	switch k {
+	case engine.Decision:
+		return "■"
+	case engine.Chance:
+		return "●"
+	}
+	return "◄"
+}
+
+// strategyTable prints engine.StrategyRowsCSV, the hook the strategy analysis
+// fills in: exact decimal cells are formatted as values (or probabilities, in a
+// column whose header says so), "true" marks the recommended row.
+func strategyTable(in *Input) ([]Section, error) {
+	r := in.Result
+	rows := engine.StrategyRowsCSV(r)
+	if len(rows) < 2 {
+		return nil, nil
+	}
+	t := &Table{Header: titleCase(rows[0])}
+	for c := range rows[0] {
+		t.Align = append(t.Align, Left)
+		if c < len(rows[1]) && isDecimal(rows[1][c]) {
+			t.Align[c] = Right
+		}
+	}
+	for _, row := range rows[1:] {
+		cells := make([]string, len(row))
+		mark := false
+		for c, cell := range row {
+			head := strings.ToLower(rows[0][min(c, len(rows[0])-1)])
+			switch {
+			case cell == "true":
+				cells[c], mark = "yes", mark || strings.Contains(head, "recommend")
+			case cell == "false":
+				cells[c] = ""
+			case isDecimal(cell) && strings.Contains(head, "prob"):
+				cells[c] = engine.FormatProbability(decimal.RequireFromString(cell))
+			case isDecimal(cell):
+				cells[c] = r.Format(decimal.RequireFromString(cell))
+			default:
+				cells[c] = cell
+			}
+		}
+		t.Rows = append(t.Rows, cells)
+		t.Highlight = append(t.Highlight, mark)
+	}
+	return []Section{{Title: "Strategies", Table: t,
+		Paragraphs: []string{fmt.Sprintf("Each alternative of the first decision, valued by its %s with the later decisions made as recommended.", r.ValueWord())}}}, nil
+}
+
+func titleCase(hs []string) []string {
+	out := make([]string, len(hs))
+	for i, h := range hs {
+		if h != "" {
+			out[i] = strings.ToUpper(h[:1]) + h[1:]
+		}
+	}
+	return out
+}
+
+func isDecimal(s string) bool {
+	if s == "" {
+		return false
+	}
+	_, err := decimal.NewFromString(s)
+	return err == nil
+}
+
+func pathTable(in *Input) ([]Section, error) {
+	r := in.Result
+	rows := r.Paths()
+	t := &Table{Header: []string{"End", "Path", "Probability", "Payoff", "Contribution"},
+		Align: []Align{Left, Left, Right, Right, Right}}
+	for _, row := range rows {
+		t.Rows = append(t.Rows, []string{engine.NodeTitle(row.End), strings.Join(row.Labels, " › "),
+			engine.FormatProbability(row.Probability), r.Format(row.Payoff), r.Format(row.Contribution)})
+		t.Highlight = append(t.Highlight, row.Optimal)
+	}
+	t.Note = "Bold rows are reached under the recommended policy. Payoff is the cash along the path plus the end payoff; " +
+		"contribution is probability × payoff."
+	return []Section{{Title: "Outcomes (path table)", Table: t, NewPage: len(rows) > 25}}, nil
+}
+
+// exactNumber prints a variable's value with every decimal it has.
+func exactNumber(d decimal.Decimal) string {
+	places := 0
+	if s := d.String(); strings.Contains(s, ".") {
+		places = len(s) - strings.IndexByte(s, '.') - 1
+	}
+	return engine.FormatNumber(d, places)
+}
+
+func assumptions(in *Input) ([]Section, error) {
+	p, r := in.Project, in.Result
+	var paras []string
+	if r.RiskActive() {
+		paras = append(paras, fmt.Sprintf("Decisions follow an exponential utility with risk tolerance %s: an alternative is valued by its certainty equivalent.",
+			r.Format(decimal.NewFromFloat(r.Tolerance()))))
+	} else {
+		paras = append(paras, "Decisions are made on expected values (risk-neutral).")
+	}
+	if len(p.Variables) == 0 {
+		paras = append(paras, "The project uses no named variables; every figure is entered on the tree.")
+		return []Section{{Title: "Assumptions", Paragraphs: paras}}, nil
+	}
+	paras = append(paras, "The named inputs, with their notes. Low and high give the range explored by sensitivity analysis.")
+	t := &Table{Header: []string{"Variable", "Value", "Formula", "Low – high", "Note"}, Align: []Align{Left, Right, Left, Left, Left}}
+	for _, v := range p.Variables {
+		val := ""
+		if d, ok := r.Vars[v.Name]; ok {
+			val = exactNumber(d)
+		}
+		formula := ""
+		if !isDecimal(strings.TrimSpace(v.Value)) {
+			formula = v.Value
+		}
+		rng := ""
+		if v.Low != "" || v.High != "" {
+			rng = shownInput(v.Low, r.Vars) + " – " + shownInput(v.High, r.Vars)
+		}
+		t.Rows = append(t.Rows, []string{v.Name, val, formula, rng, v.Note})
+	}
+	return []Section{{Title: "Assumptions", Paragraphs: paras, Table: t}}, nil
+}
+
+// shownInput prints a low/high formula text as its value when it evaluates,
+// and as typed otherwise.
+func shownInput(src string, vars engine.MapEnv) string {
+	if strings.TrimSpace(src) == "" {
+		return "—"
+	}
+	f, err := engine.ParseFormula(src)
+	if err != nil {
+		return src
+	}
+	d, err := f.Eval(vars)
+	if err != nil {
+		return src
+	}
+	return exactNumber(d)
+}
+
+func caution(in *Input) ([]Section, error) {
+	return []Section{{Title: "Caution", Paragraphs: []string{engine.Caution,
+		"The figures above are only as good as the probabilities and values entered; the assumptions section lists them."}}}, nil
+}
