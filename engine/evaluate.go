@@ -5,11 +5,16 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync/atomic"
 
 	"github.com/shopspring/decimal"
 )
 
 var one = decimal.NewFromInt(1)
+
+// evaluationStamp marks the nodes one evaluation has visited, so finding a node
+// reached twice needs no map.
+var evaluationStamp atomic.Uint64
 
 // Evaluate validates the project and rolls the tree back exactly. It never fails:
 // every problem is listed in Result.Problems with its place, and the parts of the
@@ -28,7 +33,6 @@ func Evaluate(p *Project) *Result {
 	r.rollBack()
 	r.evaluateRisk()
 	r.markPolicy()
-	r.forward()
 	return r
 }
 
@@ -101,6 +105,10 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 		for len(stack) > 0 {
 			top := &stack[len(stack)-1]
 			f := formulas[top.name]
+			if f == nil { // dropped as part of a cycle
+				stack = stack[:len(stack)-1]
+				continue
+			}
 			if top.next < len(f.names) {
 				dep := f.names[top.next]
 				top.next++
@@ -151,24 +159,24 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 // index lists the nodes in preorder and sizes the result slices. A node that
 // appears twice (the tree is not a tree) is reported and not descended again.
 func (r *Result) index() {
-	seen := map[*Node]bool{}
-	ids := map[string]bool{}
+	stamp := evaluationStamp.Add(1)
+	ids := make(map[string]struct{}, r.Project.sizeHint)
 	Walk(r.Project.Root, func(n *Node, _ int) bool {
-		if seen[n] {
+		if n.stamp == stamp {
 			r.nodeProblem(n, -1, "", "this node appears in two places; a tree node has one parent")
 			return false
 		}
-		seen[n] = true
-		if ids[n.ID] {
+		n.stamp = stamp
+		if _, dup := ids[n.ID]; dup {
 			r.nodeProblem(n, -1, "id", "the id is used by another node")
 		}
-		ids[n.ID] = true
+		ids[n.ID] = struct{}{}
 		n.index = len(r.Nodes)
 		r.Nodes = append(r.Nodes, n)
 		return true
 	})
-	// A node appearing twice breaks the walk's assumption; cut the second visit off.
 	count := len(r.Nodes)
+	r.Project.sizeHint = count
 	r.value = make([]decimal.Decimal, count)
 	r.choice = make([]int, count)
 	r.ties = make([][]int, count)
@@ -180,8 +188,16 @@ func (r *Result) index() {
 	r.parent = make([]int32, count)
 	r.parentBranch = make([]int32, count)
 	r.parent[0] = -1
+	slots := 0
+	for _, n := range r.Nodes {
+		slots += len(n.Branches)
+	}
+	probs, cashes := make([]decimal.Decimal, slots), make([]decimal.Decimal, slots)
 	for i, n := range r.Nodes {
 		r.choice[i] = -1
+		k := len(n.Branches)
+		r.prob[i], r.cash[i] = probs[:k:k], cashes[:k:k]
+		probs, cashes = probs[k:], cashes[k:]
 		for bi, b := range n.Branches {
 			if c := b.To; c != nil && c.index < count && r.Nodes[c.index] == c && c.index > i {
 				r.parent[c.index], r.parentBranch[c.index] = int32(i), int32(bi)
@@ -232,8 +248,6 @@ func (r *Result) evaluateFields() {
 			r.broken[i] = true
 			continue
 		}
-		r.cash[i] = make([]decimal.Decimal, len(n.Branches))
-		r.prob[i] = make([]decimal.Decimal, len(n.Branches))
 		for bi, b := range n.Branches {
 			if b.To == nil {
 				r.nodeProblem(n, bi, "", "the branch leads nowhere")
@@ -261,6 +275,60 @@ func (r *Result) evaluateFields() {
 // evaluateProbabilities checks a chance node's distribution: each in [0, 1],
 // at most one "rest", and a total of exactly 1.
 func (r *Result) evaluateProbabilities(n *Node) bool {
+	if r.reuseProbabilities(n) {
+		return true
+	}
+	ok := r.checkProbabilities(n)
+	r.rememberProbabilities(n, ok)
+	return ok
+}
+
+// reuseProbabilities skips the exact checks when a node's probabilities are all
+// constants whose compiled formulas are unchanged since a previous valid check.
+func (r *Result) reuseProbabilities(n *Node) bool {
+	c := &n.probCheck
+	if !c.valid || len(c.formulas) != len(n.Branches) {
+		return false
+	}
+	for bi, b := range n.Branches {
+		if strings.TrimSpace(b.Probability) == RestProbability {
+			if c.formulas[bi] != nil {
+				return false
+			}
+			continue
+		}
+		f, err := b.probF.get(b.Probability)
+		if err != nil || f != c.formulas[bi] || !f.constant {
+			return false
+		}
+	}
+	copy(r.prob[n.index], c.probs)
+	return true
+}
+
+func (r *Result) rememberProbabilities(n *Node, ok bool) {
+	c := &n.probCheck
+	c.valid = false
+	if !ok {
+		return
+	}
+	c.formulas = c.formulas[:0]
+	for _, b := range n.Branches {
+		if strings.TrimSpace(b.Probability) == RestProbability {
+			c.formulas = append(c.formulas, nil)
+			continue
+		}
+		f, _ := b.probF.get(b.Probability)
+		if !f.constant {
+			return
+		}
+		c.formulas = append(c.formulas, f)
+	}
+	c.probs = append(c.probs[:0], r.prob[n.index]...)
+	c.valid = true
+}
+
+func (r *Result) checkProbabilities(n *Node) bool {
 	i := n.index
 	ok := true
 	rest := -1
@@ -531,7 +599,12 @@ func (r *Result) markPolicy() {
 }
 
 // forward computes path probability and accumulated cash from the root down.
+// It runs on first use: the roll-back itself does not need it.
 func (r *Result) forward() {
+	r.forwardOnce.Do(r.computeForward)
+}
+
+func (r *Result) computeForward() {
 	count := len(r.Nodes)
 	r.pathValue = make([]decimal.Decimal, count)
 	r.pathProb = make([]decimal.Decimal, count)
@@ -581,6 +654,7 @@ func (r *Result) Paths() []PathRow {
 		if n.Kind != End {
 			continue
 		}
+		r.forward()
 		rows = append(rows, PathRow{
 			End: n, Labels: r.Labels(n), Probability: r.pathProb[i], Payoff: r.pathValue[i],
 			Contribution: r.pathProb[i].Mul(r.pathValue[i]), Optimal: r.onPolicy[i],

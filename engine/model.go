@@ -31,6 +31,8 @@ type Project struct {
 	Variables  []*Variable
 	Risk       RiskAttitude
 	Root       *Node
+
+	sizeHint int // node count at the last evaluation, to size maps
 }
 
 // RiskAttitude is the project's stated attitude to risk.
@@ -96,7 +98,10 @@ type Node struct {
 	Collapsed bool // drawn as a stub; a view setting saved with the project
 
 	payoffF cachedFormula
-	index   int // position in the last evaluation's preorder; see Evaluate
+	index   int    // position in the last evaluation's preorder; see Evaluate
+	stamp   uint64 // last evaluation that visited the node
+
+	probCheck probabilityCheck
 }
 
 // Branch leaves a decision or chance node and leads to a child node.
@@ -242,4 +247,11 @@ func (n *Node) Clone() *Node {
 		}
 	}
 	return root
+}
+
+// probabilityCheck remembers a chance node's last valid constant probabilities.
+type probabilityCheck struct {
+	valid    bool
+	formulas []*Formula // nil for the rest branch
+	probs    []Decimal
 }
