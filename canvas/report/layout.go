@@ -47,6 +47,9 @@ type Section struct {
 	Figure       func(c vg.Canvas, rect vg.Rectangle) error
 	FigureHeight vg.Length
 	NewPage      bool // start the section on a fresh page
+	// Behind draws the figure before everything else on its page, so the
+	// heading and page number are drawn over it (tiles that mask their margins).
+	Behind bool
 }
 
 // palette is the report's theme: print is black on white with grey rules;
@@ -116,6 +119,12 @@ func (pg *pager) newPage() {
 }
 
 func (pg *pager) add(o op) { pg.pages[len(pg.pages)-1] = append(pg.pages[len(pg.pages)-1], o) }
+
+// addFirst puts o before everything already on the current page.
+func (pg *pager) addFirst(o op) {
+	last := len(pg.pages) - 1
+	pg.pages[last] = append([]op{o}, pg.pages[last]...)
+}
 
 func (pg *pager) left() vg.Length      { return pg.margin }
 func (pg *pager) textWidth() vg.Length { return pg.w - 2*pg.margin }
@@ -391,19 +400,29 @@ func sumLengths(ls []vg.Length) vg.Length {
 
 // figure reserves hgt (0: the rest of a fresh page) and draws into it.
 func (pg *pager) figure(hgt vg.Length, drawIt func(c vg.Canvas, rect vg.Rectangle) error) {
-	if hgt <= 0 || hgt > pg.bottom()-pg.margin {
-		if pg.room() < (pg.bottom()-pg.margin)*0.6 {
+	pg.figureOp(hgt, drawIt, false)
+}
+
+func (pg *pager) figureOp(hgt vg.Length, drawIt func(c vg.Canvas, rect vg.Rectangle) error, behind bool) {
+	if full := pg.bottom() - pg.margin; hgt <= 0 || hgt > full {
+		// The rest of the page, on a fresh one when less than 60% is left.
+		if pg.room() < full*0.6 {
 			pg.newPage()
 		}
 		hgt = pg.room()
 	}
 	pg.need(hgt)
 	rect := vg.Rectangle{Min: vg.Point{X: pg.left(), Y: pg.h - pg.y - hgt}, Max: vg.Point{X: pg.left() + pg.textWidth(), Y: pg.h - pg.y}}
-	pg.add(func(c vg.Canvas) error {
+	o := func(c vg.Canvas) error {
 		c.Push()
 		defer c.Pop()
 		return drawIt(c, rect)
-	})
+	}
+	if behind {
+		pg.addFirst(o)
+	} else {
+		pg.add(o)
+	}
 	pg.started = true
 	pg.y += hgt + 8
 }
@@ -438,7 +457,7 @@ func (pg *pager) section(s Section) {
 		pg.chart(s.Chart, s.ChartHeight)
 	}
 	if s.Figure != nil {
-		pg.figure(s.FigureHeight, s.Figure)
+		pg.figureOp(s.FigureHeight, s.Figure, s.Behind)
 	}
 }
 

@@ -22,8 +22,16 @@ import (
 	"github.com/ramify-app/ramify/engine"
 )
 
-// TreeDrawer draws the tree of p into rect (scaled to fit), on any vg canvas.
-type TreeDrawer func(c vg.Canvas, rect vg.Rectangle, p *engine.Project, r *engine.Result) error
+// TreeDiagram is the tree drawing the canvas provides (canvas.DrawTree).
+type TreeDiagram interface {
+	// Size is the diagram's natural size in points at scale 1.
+	Size() (w, h vg.Length)
+	// Draw draws the whole diagram scaled by k (≤ 1) with its top-left corner at topLeft.
+	Draw(c vg.Canvas, topLeft vg.Point, k float64) error
+}
+
+// TreeDrawer makes the diagram of p for a report theme ("print" or "colour").
+type TreeDrawer func(p *engine.Project, r *engine.Result, theme string) (TreeDiagram, error)
 
 // Options choose the report's page, look and title-page fields.
 type Options struct {
@@ -31,7 +39,8 @@ type Options struct {
 	Theme      string    // "print" (default) or "colour"
 	PreparedBy string    // overrides the project's prepared-by field when set
 	Date       time.Time // zero: now
-	Tree       TreeDrawer
+	// Tree draws the diagram; nil prints the tree as an outline table instead.
+	Tree TreeDrawer
 }
 
 // Input is what a section builder reads.
@@ -40,7 +49,11 @@ type Input struct {
 	Project *engine.Project
 	Result  *engine.Result
 	Options Options
+	page    pageArea
 }
+
+// pageArea is the text area of a page, for sections that size figures to it.
+type pageArea struct{ textW, textH vg.Length }
 
 // Builder makes zero or more sections; it returns none when its analysis does
 // not apply to the project (no data, wrong shape).
@@ -122,13 +135,13 @@ func Write(ctx context.Context, w io.Writer, p *engine.Project, r *engine.Result
 	if o.Date.IsZero() {
 		o.Date = time.Now()
 	}
-	in := &Input{Ctx: ctx, Project: p, Result: r, Options: o}
+	size := pageSizes[strings.ToLower(defaultTo(o.Page, "A4"))]
+	pg := newPager(size[0], size[1], palettes[strings.ToLower(defaultTo(o.Theme, "print"))])
+	in := &Input{Ctx: ctx, Project: p, Result: r, Options: o, page: pageArea{pg.textWidth(), pg.bottom() - pg.margin}}
 	secs, err := Sections(in)
 	if err != nil {
 		return err
 	}
-	size := pageSizes[strings.ToLower(defaultTo(o.Page, "A4"))]
-	pg := newPager(size[0], size[1], palettes[strings.ToLower(defaultTo(o.Theme, "print"))])
 	for i, s := range secs {
 		if i == 0 {
 			pg.titlePage(s)

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"os"
 	"os/exec"
@@ -204,22 +205,59 @@ func TestAnalysisSectionRegistration(t *testing.T) {
 	assert.Contains(t, flat, "Cumulative chance")
 }
 
-// A tree drawer given in the options gets a whole page for the diagram.
-func TestTreeDrawerIsUsed(t *testing.T) {
+// fakeTree records where the report asks for the diagram.
+type fakeTree struct {
+	w, h  vg.Length
+	calls []vg.Point
+	k     []float64
+}
+
+func (f *fakeTree) Size() (vg.Length, vg.Length) { return f.w, f.h }
+func (f *fakeTree) Draw(c vg.Canvas, topLeft vg.Point, k float64) error {
+	f.calls, f.k = append(f.calls, topLeft), append(f.k, k)
+	return nil
+}
+
+// A small tree is fitted on one page; a big one is tiled at a readable scale,
+// one page per tile, every tile offset by whole tiles.
+func TestTreeDiagramFitOrTiled(t *testing.T) {
 	p, r := loadDemo(t)
-	var got vg.Rectangle
-	calls := 0
-	opts := Options{Tree: func(c vg.Canvas, rect vg.Rectangle, pp *engine.Project, rr *engine.Result) error {
-		calls++
-		got = rect
-		assert.Same(t, p, pp)
-		assert.Same(t, r, rr)
-		return nil
-	}}
-	path := writeReport(t, p, r, opts)
-	assert.Equal(t, 1, calls)
-	assert.Greater(t, float64(got.Max.Y-got.Min.Y), 400.0, "the diagram gets most of a page")
-	assert.NotContains(t, squash(poppler(t, "pdftotext", path, "-")), "Decision tree (outline)")
+	tests := []struct {
+		name        string
+		w, h        vg.Length
+		tiles       int
+		scaleAtMost float64
+	}{
+		{"fits at full size", 300, 200, 1, 1},
+		{"fits scaled down", 900, 600, 1, 0.6},
+		{"tiled", 3000, 2500, 0, tileScale},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			f := &fakeTree{w: tc.w, h: tc.h}
+			var theme string
+			opts := Options{Tree: func(pp *engine.Project, rr *engine.Result, th string) (TreeDiagram, error) {
+				assert.Same(t, p, pp)
+				assert.Same(t, r, rr)
+				theme = th
+				return f, nil
+			}}
+			path := writeReport(t, p, r, opts)
+			assert.Equal(t, "print", theme)
+			flat := squash(poppler(t, "pdftotext", path, "-"))
+			assert.NotContains(t, flat, "Decision tree (outline)")
+			want := tc.tiles
+			if want == 0 {
+				tw, th := vg.Length(595.28-2*56), vg.Length(841.89-2*56-28-70)
+				want = int(math.Ceil(float64(tc.w)*tileScale/float64(tw))) * int(math.Ceil(float64(tc.h)*tileScale/float64(th)))
+				assert.Contains(t, flat, fmt.Sprintf("part %d of %d", want, want))
+			}
+			require.Len(t, f.calls, want)
+			for _, k := range f.k {
+				assert.LessOrEqual(t, k, tc.scaleAtMost+1e-9)
+			}
+		})
+	}
 }
 
 func TestColumnWidths(t *testing.T) {

@@ -2,6 +2,8 @@ package report
 
 import (
 	"fmt"
+	"image/color"
+	"math"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -56,15 +58,75 @@ func recommendation(in *Input) ([]Section, error) {
 	return []Section{{Title: "Recommendation", Paragraphs: paras}}, nil
 }
 
+// Below this scale a whole-page diagram is too small to read, and the tree is
+// tiled over several pages at tileScale instead (labels stay near 7 pt).
+const (
+	minFitScale = 0.45
+	tileScale   = 0.65
+)
+
 func treeSection(in *Input) ([]Section, error) {
 	p, r := in.Project, in.Result
-	if in.Options.Tree != nil {
-		draw := in.Options.Tree
-		return []Section{{Title: "Decision tree", NewPage: true,
-			Paragraphs: []string{"The recommended path is highlighted; the values shown are " + r.ValueWord() + "s rolled back from the ends."},
-			Figure:     func(c vg.Canvas, rect vg.Rectangle) error { return draw(c, rect, p, r) }}}, nil
+	if in.Options.Tree == nil {
+		return []Section{outline(r)}, nil
 	}
-	return []Section{outline(r)}, nil
+	d, err := in.Options.Tree(p, r, strings.ToLower(defaultTo(in.Options.Theme, "print")))
+	if err != nil {
+		return nil, err
+	}
+	w, h := d.Size()
+	if w <= 0 || h <= 0 {
+		return []Section{outline(r)}, nil
+	}
+	intro := "The recommended path is highlighted; the values shown are " + r.ValueWord() + "s rolled back from the ends."
+	// The figure area of a fresh page after the heading and one line of text.
+	areaW, areaH := in.page.textW, in.page.textH-70
+	k := min(1, float64(areaW/w), float64(areaH/h))
+	if k >= minFitScale {
+		return []Section{{Title: "Decision tree", NewPage: true, Paragraphs: []string{intro},
+			Figure: func(c vg.Canvas, rect vg.Rectangle) error {
+				kk := min(1, float64((rect.Max.X-rect.Min.X)/w), float64((rect.Max.Y-rect.Min.Y)/h))
+				return d.Draw(c, vg.Point{X: rect.Min.X, Y: rect.Max.Y}, kk)
+			}}}, nil
+	}
+	tileW, tileH := in.page.textW, in.page.textH-70
+	cols := int(math.Ceil(float64(w) * tileScale / float64(tileW)))
+	rows := int(math.Ceil(float64(h) * tileScale / float64(tileH)))
+	var out []Section
+	for row := 0; row < rows; row++ {
+		for col := 0; col < cols; col++ {
+			row, col := row, col
+			s := Section{Title: fmt.Sprintf("Decision tree, part %d of %d (row %d, column %d)", row*cols+col+1, rows*cols, row+1, col+1),
+				NewPage: true, Behind: true, FigureHeight: tileH,
+				Figure: func(c vg.Canvas, rect vg.Rectangle) error {
+					top := vg.Point{X: rect.Min.X - vg.Length(col)*tileW, Y: rect.Max.Y + vg.Length(row)*tileH}
+					if err := d.Draw(newCullCanvas(c, rect), top, tileScale); err != nil {
+						return err
+					}
+					maskOutside(c, rect)
+					return nil
+				}}
+			if row == 0 && col == 0 {
+				s.Paragraphs = []string{intro + fmt.Sprintf(" The tree is printed in %d parts, %d across and %d down; read across, then down.", rows*cols, cols, rows)}
+			}
+			out = append(out, s)
+		}
+	}
+	return out, nil
+}
+
+// maskOutside paints the page white outside rect: vg has no clipping, and a
+// tile's neighbours must not show in the margins.
+func maskOutside(c vg.Canvas, rect vg.Rectangle) {
+	pw, ph := vg.Length(2000), vg.Length(2000)
+	if sz, ok := c.(vg.CanvasSizer); ok {
+		pw, ph = sz.Size()
+	}
+	c.SetColor(color.White)
+	c.Fill(rectPath(0, 0, pw, rect.Min.Y))
+	c.Fill(rectPath(0, rect.Max.Y, pw, ph-rect.Max.Y))
+	c.Fill(rectPath(0, 0, rect.Min.X, ph))
+	c.Fill(rectPath(rect.Max.X, 0, pw-rect.Max.X, ph))
 }
 
 // outline lists the tree as an indented table, for when no diagram is drawn.
