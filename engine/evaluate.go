@@ -160,21 +160,25 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 // appears twice (the tree is not a tree) is reported and not descended again.
 func (r *Result) index() {
 	stamp := evaluationStamp.Add(1)
-	ids := make(map[string]struct{}, r.Project.sizeHint)
-	Walk(r.Project.Root, func(n *Node, _ int) bool {
+	r.Nodes = make([]*Node, 0, r.Project.sizeHint)
+	stack := []*Node{r.Project.Root}
+	for len(stack) > 0 {
+		n := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
 		if n.stamp == stamp {
 			r.nodeProblem(n, -1, "", "this node appears in two places; a tree node has one parent")
-			return false
+			continue
 		}
 		n.stamp = stamp
-		if _, dup := ids[n.ID]; dup {
-			r.nodeProblem(n, -1, "id", "the id is used by another node")
-		}
-		ids[n.ID] = struct{}{}
 		n.index = len(r.Nodes)
 		r.Nodes = append(r.Nodes, n)
-		return true
-	})
+		for i := len(n.Branches) - 1; i >= 0; i-- {
+			if c := n.Branches[i].To; c != nil {
+				stack = append(stack, c)
+			}
+		}
+	}
+	r.checkIDs()
 	count := len(r.Nodes)
 	r.Project.sizeHint = count
 	r.value = make([]decimal.Decimal, count)
@@ -203,6 +207,37 @@ func (r *Result) index() {
 				r.parent[c.index], r.parentBranch[c.index] = int32(i), int32(bi)
 			}
 		}
+	}
+}
+
+// checkIDs reports ids used twice. The project keeps the id → node map of its
+// last evaluation; when every node still sits under its own id (the usual case
+// after an edit) look-ups suffice and the map is not rebuilt.
+func (r *Result) checkIDs() {
+	p := r.Project
+	if len(p.idCache) == len(r.Nodes) {
+		same := true
+		for _, n := range r.Nodes {
+			if p.idCache[n.ID] != n {
+				same = false
+				break
+			}
+		}
+		if same {
+			return
+		}
+	}
+	ids := make(map[string]*Node, len(r.Nodes))
+	for _, n := range r.Nodes {
+		if _, dup := ids[n.ID]; dup {
+			r.nodeProblem(n, -1, "id", "the id is used by another node")
+			continue
+		}
+		ids[n.ID] = n
+	}
+	p.idCache = nil
+	if len(ids) == len(r.Nodes) {
+		p.idCache = ids
 	}
 }
 
@@ -383,10 +418,12 @@ func (r *Result) checkProbabilities(n *Node) bool {
 // every child before its parent, so no recursion is needed at any depth.
 func (r *Result) rollBack() {
 	maximize := r.Project.Objective != Minimize
+	fast := make([]small, len(r.Nodes)) // the int64 form of each value, when it fits
 	for i := len(r.Nodes) - 1; i >= 0; i-- {
 		n := r.Nodes[i]
 		if n.Kind == End {
 			r.value[i] = r.payoff[i]
+			fast[i] = smallOf(r.payoff[i])
 			continue
 		}
 		for _, b := range n.Branches {
@@ -399,6 +436,10 @@ func (r *Result) rollBack() {
 		}
 		switch n.Kind {
 		case Chance:
+			if acc, ok := r.chanceFast(i, n, fast); ok {
+				fast[i], r.value[i] = acc, acc.dec()
+				continue
+			}
 			sum := decimal.Zero
 			for bi, b := range n.Branches {
 				p := r.prob[i][bi]
@@ -411,11 +452,15 @@ func (r *Result) rollBack() {
 				}
 				sum = sum.Add(v)
 			}
-			r.value[i] = sum
+			r.value[i], fast[i] = sum, smallOf(sum)
 		case Decision:
-			best := -1
+			best, ties, bestS, ok := r.decideFast(i, n, fast, maximize)
+			if ok {
+				r.choice[i], r.ties[i], fast[i], r.value[i] = best, ties, bestS, bestS.dec()
+				continue
+			}
 			var bestV decimal.Decimal
-			var ties []int
+			best, ties = -1, nil
 			for bi, b := range n.Branches {
 				v := r.branchValue(i, bi, b)
 				switch {
@@ -427,9 +472,56 @@ func (r *Result) rollBack() {
 					best, bestV, ties = bi, v, nil
 				}
 			}
-			r.choice[i], r.value[i], r.ties[i] = best, bestV, ties
+			r.choice[i], r.value[i], r.ties[i], fast[i] = best, bestV, ties, smallOf(bestV)
 		}
 	}
+}
+
+// decideFast picks the best branch in int64 arithmetic; ok is false when any
+// value does not fit, and the caller then uses decimal.Decimal.
+func (r *Result) decideFast(i int, n *Node, fast []small, maximize bool) (int, []int, small, bool) {
+	best := -1
+	var bestS small
+	var ties []int
+	for bi, b := range n.Branches {
+		vs := fast[b.To.index].add(smallOf(r.cash[i][bi]))
+		if !vs.ok {
+			return 0, nil, small{}, false
+		}
+		if best < 0 {
+			best, bestS = bi, vs
+			continue
+		}
+		c, ok := vs.cmp(bestS)
+		if !ok {
+			return 0, nil, small{}, false
+		}
+		switch {
+		case c == 0:
+			ties = append(ties, bi)
+		case (maximize && c > 0) || (!maximize && c < 0):
+			best, bestS, ties = bi, vs, nil
+		}
+	}
+	return best, ties, bestS, true
+}
+
+// chanceFast is the chance-node sum in int64 arithmetic; ok is false when any
+// step would not fit, and the caller then uses decimal.Decimal.
+func (r *Result) chanceFast(i int, n *Node, fast []small) (small, bool) {
+	acc := small{ok: true}
+	for bi, b := range n.Branches {
+		p := r.prob[i][bi]
+		if p.IsZero() {
+			continue
+		}
+		v := fast[b.To.index].add(smallOf(r.cash[i][bi]))
+		acc = acc.add(smallOf(p).mul(v))
+		if !acc.ok {
+			return acc, false
+		}
+	}
+	return acc, true
 }
 
 // owns reports whether c is the child recorded for parent index i (guards shared nodes).

@@ -528,11 +528,11 @@ type writer struct {
 // with the square of its depth; ordinary trees never reach it.
 const maxIndent = 64
 
+var indentSpaces = strings.Repeat("  ", maxIndent)
+
 func (w *writer) newline() {
 	w.b.WriteByte('\n')
-	for i := 0; i < w.indent && i < maxIndent; i++ {
-		w.b.WriteString("  ")
-	}
+	w.b.WriteString(indentSpaces[:2*min(w.indent, maxIndent)])
 }
 
 func (w *writer) open(bracket string) {
@@ -650,6 +650,17 @@ func (w *writer) node(root *Node) {
 }
 
 func writeJSONString(b *bytes.Buffer, s string) {
+	plain := true
+	for i := 0; i < len(s) && plain; i++ {
+		c := s[i]
+		plain = c >= 0x20 && c < 0x7f && c != '"' && c != '\\' && c != '<' && c != '>' && c != '&'
+	}
+	if plain { // the common case, written as encoding/json would write it
+		b.WriteByte('"')
+		b.WriteString(s)
+		b.WriteByte('"')
+		return
+	}
 	enc, _ := json.Marshal(s) // a string always marshals
 	b.Write(enc)
 }

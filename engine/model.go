@@ -32,7 +32,8 @@ type Project struct {
 	Risk       RiskAttitude
 	Root       *Node
 
-	sizeHint int // node count at the last evaluation, to size maps
+	sizeHint int              // node count at the last evaluation, to size slices
+	idCache  map[string]*Node // ids of the last evaluation, when all were unique
 }
 
 // RiskAttitude is the project's stated attitude to risk.
@@ -199,6 +200,7 @@ func (o Objective) Better(a, b float64) bool {
 // so the copy can be evaluated on another goroutine.
 func (p *Project) Clone() *Project {
 	c := *p
+	c.idCache, c.sizeHint = nil, 0
 	c.Variables = make([]*Variable, len(p.Variables))
 	for i, v := range p.Variables {
 		c.Variables[i] = v.Clone()
