@@ -158,7 +158,8 @@ func TestExportPDF(t *testing.T) {
 	})
 
 	t.Run("tiles across pages", func(t *testing.T) {
-		big, rb := evaluated(t, 4, 400)
+		big := bigTree(400)
+		rb := engine.Evaluate(big)
 		path := filepath.Join(dir, "tiles.pdf")
 		require.NoError(t, Export(big, rb, path, ExportOptions{Page: "A4", Tile: true, Date: fixedDate}))
 		l := LayoutTree(big, rb, FontMeasurer{}, DefaultOptions())
@@ -261,7 +262,8 @@ func TestExportBadInput(t *testing.T) {
 			before, _ := os.ReadDir(dir)
 			p, r := p, r
 			if tc.big {
-				p, r = evaluated(t, 2, 3000)
+				p = bigTree(3000)
+				r = engine.Evaluate(p)
 			}
 			err := Export(p, r, tc.path, tc.opts)
 			require.Error(t, err)
@@ -276,7 +278,8 @@ func TestExportBadInput(t *testing.T) {
 }
 
 func TestExportKeepsOldFileOnFailure(t *testing.T) {
-	p, r := evaluated(t, 2, 3000)
+	p := bigTree(3000)
+	r := engine.Evaluate(p)
 	path := filepath.Join(t.TempDir(), "tree.png")
 	require.NoError(t, os.WriteFile(path, []byte("previous export"), 0o644))
 	require.Error(t, Export(p, r, path, ExportOptions{DPI: 1200}))

@@ -102,3 +102,58 @@ func countNodes(p *engine.Project) int { return len(p.Nodes()) }
 var _ = strings.Repeat
 
 func decimalInt(n int) decimal.Decimal { return decimal.NewFromInt(int64(n)) }
+
+// bigTree is a valid tree of exactly n nodes (n ≥ 1), breadth first, three
+// branches per inner node, levels alternating decision and chance, with cash
+// on every third branch; for benchmarks and large-tree tests.
+func bigTree(n int) *engine.Project {
+	id := 0
+	mk := func(k engine.Kind) *engine.Node {
+		id++
+		return &engine.Node{ID: fmt.Sprintf("n%d", id), Kind: k, Payoff: fmt.Sprint((id * 7919) % 100000)}
+	}
+	root := mk(engine.Decision)
+	root.Payoff = ""
+	queue := []*engine.Node{root}
+	count := 1
+	probs := []string{"0.5", "0.3", engine.RestProbability}
+	for len(queue) > 0 && count < n {
+		p := queue[0]
+		queue = queue[1:]
+		kind := engine.Chance
+		if p.Kind == engine.Chance {
+			kind = engine.Decision
+		}
+		for i := 0; i < 3 && count < n; i++ {
+			c := mk(engine.End)
+			count++
+			b := &engine.Branch{Label: fmt.Sprintf("option %d", id), To: c}
+			if p.Kind == engine.Chance {
+				b.Probability = probs[i]
+			}
+			if id%3 == 0 {
+				b.Cash = fmt.Sprint(-(id % 5000))
+			}
+			p.Branches = append(p.Branches, b)
+			queue = append(queue, c)
+			c.Kind = kind // turned back into an end below if it gets no children
+		}
+	}
+	engine.Walk(root, func(n *engine.Node, _ int) bool {
+		if len(n.Branches) == 0 {
+			n.Kind = engine.End
+		} else {
+			n.Payoff = ""
+		}
+		if n.Kind == engine.Chance && len(n.Branches) < 3 {
+			n.Branches[len(n.Branches)-1].Probability = engine.RestProbability
+			if len(n.Branches) == 2 {
+				n.Branches[0].Probability = "0.5"
+			} else {
+				n.Branches[0].Probability = "1"
+			}
+		}
+		return true
+	})
+	return &engine.Project{Title: "Big", Currency: "EUR", Objective: engine.Maximize, Root: root}
+}

@@ -41,7 +41,15 @@ type NodeBox struct {
 	Top    float64 // extent above Y (labels, value)
 	Bottom float64 // extent below Y (numbers, notes, problems)
 	Hidden int     // nodes hidden below a collapsed node
+	*NodeTexts
 
+	kid0, nkids int32
+}
+
+// NodeTexts are the measured texts drawn around one node. A Layouter keeps
+// them between layouts and updates only what changed, so a Layout's texts are
+// current until that Layouter lays out the same tree again.
+type NodeTexts struct {
 	Label      TextRun   // branch label above the incoming branch
 	Prob       TextRun   // probability below the incoming branch (chance parents)
 	Cash       TextRun   // cash below the incoming branch
@@ -49,9 +57,7 @@ type NodeBox struct {
 	Payoff     TextRun   // path payoff beside an end
 	Notes      []TextRun // small notes under the branch numbers
 	Problems   []TextRun // problem messages under the node
-	HiddenNote TextRun   // "N hidden" under a collapsed node
-
-	kid0, nkids int32
+	HiddenNote TextRun   // "N nodes hidden" under a collapsed node
 }
 
 // TextRun is a measured line of text. Full holds the whole text when Text was cut.
@@ -126,19 +132,31 @@ func (l *Layout) SubtreeBounds(i int) Rect {
 	return r
 }
 
-// Layouter lays trees out and remembers measured text widths and formatted
-// numbers between calls, so the re-layout after an edit only measures and
-// formats what changed. It is not safe for concurrent use.
+// Layouter lays trees out and remembers, per node, the formatted numbers and
+// measured texts of the last layout, so the re-layout after an edit formats
+// and measures only what changed. It is not safe for concurrent use.
 type Layouter struct {
 	measure *measureCache
-	nums    map[*engine.Node]*nodeNumbers
-	numsFor numberFormat
+	entries map[*engine.Node]*nodeEntry
+	key     layoutKey
+	gen     uint32
+	last    int // boxes in the last layout, to size the next
+	scratch rowScratch
+	stack   []walkItem
+	// The last layout's preorder: when the tree's shape is unchanged the i-th
+	// node visited is the same as last time and needs no map lookup.
+	order []*nodeEntry
+	nodes []*engine.Node
 }
 
-type numberFormat struct {
-	decimals int
-	currency string
-	ce       bool
+// layoutKey is everything besides the node itself that its texts depend on.
+type layoutKey struct {
+	evaluated             bool
+	decimals              int
+	currency              string
+	ce                    bool
+	label, num, val, note float64
+	maxLabel, maxNote     float64
 }
 
 type cachedNumber struct {
@@ -155,8 +173,21 @@ func (c *cachedNumber) get(d decimal.Decimal, format func(decimal.Decimal) strin
 	return c.s
 }
 
-type nodeNumbers struct {
-	prob, cash, value, payoff cachedNumber
+// nodeEntry is what a Layouter remembers about one node.
+type nodeEntry struct {
+	NodeTexts
+	labelSrc, probSrc, cashSrc, payoffSrc string // formula texts when not evaluated
+	prob, cash, value, payoff             cachedNumber
+	notesSrc, problemsSrc                 []string
+	hiddenSrc                             int
+	seen                                  uint32
+}
+
+type walkItem struct {
+	n      *engine.Node
+	parent int32
+	branch int32
+	depth  int32
 }
 
 // NewLayouter returns a layouter measuring text with m.
@@ -164,7 +195,7 @@ func NewLayouter(m TextMeasurer) *Layouter {
 	if m == nil {
 		m = FontMeasurer{}
 	}
-	return &Layouter{measure: newMeasureCache(m), nums: map[*engine.Node]*nodeNumbers{}}
+	return &Layouter{measure: newMeasureCache(m), entries: map[*engine.Node]*nodeEntry{}}
 }
 
 // LayoutTree is a one-off layout (no cache kept between calls).
@@ -184,30 +215,32 @@ func (lo *Layouter) Layout(p *engine.Project, r *engine.Result, opts Options) *L
 	if r != nil && r.Project != p {
 		r = nil // a result of another project would show wrong numbers
 	}
-	nf := numberFormat{decimals: p.Decimals, currency: p.Currency, ce: opts.ShowCertaintyEquivalent}
-	if nf != lo.numsFor {
-		lo.nums = map[*engine.Node]*nodeNumbers{}
-		lo.numsFor = nf
+	key := layoutKey{evaluated: r != nil, decimals: p.Decimals, currency: p.Currency, ce: opts.ShowCertaintyEquivalent,
+		label: th.LabelSize, num: th.NumberSize, val: th.ValueSize, note: th.NoteSize, maxLabel: th.MaxLabelWidth, maxNote: th.MaxNoteWidth}
+	if key != lo.key {
+		clear(lo.entries)
+		lo.nodes, lo.order = lo.nodes[:0], lo.order[:0]
+		lo.key = key
 	}
-
+	lo.gen++
 	lo.collect(p, r, l, opts)
 	lo.columns(l)
-	placeRows(l)
+	placeRows(l, &lo.scratch)
 	l.finish()
-	if len(lo.nums) > 2*len(l.Boxes)+64 { // forget nodes that were deleted
-		keep := make(map[*engine.Node]*nodeNumbers, len(l.Boxes))
-		for i := range l.Boxes {
-			if v, ok := lo.nums[l.Boxes[i].Node]; ok {
-				keep[l.Boxes[i].Node] = v
+	lo.last = len(l.Boxes)
+	if len(lo.entries) > 2*len(l.Boxes)+64 { // forget nodes that were deleted
+		for n, e := range lo.entries {
+			if e.seen != lo.gen {
+				delete(lo.entries, n)
 			}
 		}
-		lo.nums = keep
+		// order only holds entries seen in this layout, so it stays valid
 	}
 	return l
 }
 
-// collect walks the tree without recursion, builds the preorder boxes and
-// measures every text (through the caches).
+// collect walks the tree without recursion and builds the preorder boxes,
+// updating each node's texts only where their source changed.
 func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts Options) {
 	th := &l.Theme
 	mc := lo.measure
@@ -225,9 +258,6 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 	format := func(d decimal.Decimal) string { return engine.FormatValue(d, p.Decimals, p.Currency) }
 	formatP := engine.FormatProbability
-	run := func(t map[string]float64, s string, size float64, bold bool) TextRun {
-		return TextRun{Text: s, Width: mc.width(t, s, size, bold)}
-	}
 	fit := func(s string, size float64, max float64) TextRun {
 		s = cleanText(s)
 		ct := mc.fit(s, size, false, max)
@@ -237,101 +267,149 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		}
 		return tr
 	}
-	numbers := func(n *engine.Node) *nodeNumbers {
-		nn := lo.nums[n]
-		if nn == nil {
-			nn = &nodeNumbers{}
-			lo.nums[n] = nn
+	// number updates a measured number text when its string changed.
+	number := func(tr *TextRun, t map[string]float64, s string, size float64, bold bool) {
+		if tr.Text != s || s == "" {
+			*tr = TextRun{Text: s, Width: mc.width(t, s, size, bold)}
 		}
-		return nn
+	}
+	// source updates a text fitted from a formula or label when its source changed.
+	source := func(tr *TextRun, src *string, s string, size, max float64) {
+		if *src != s || (s != "" && tr.Text == "") {
+			*src = s
+			*tr = fit(s, size, max)
+		}
+	}
+	sameStrings := func(a, b []string) bool {
+		if len(a) != len(b) {
+			return false
+		}
+		for i := range a {
+			if a[i] != b[i] {
+				return false
+			}
+		}
+		return true
 	}
 
-	type item struct {
-		n      *engine.Node
-		parent int32
-		branch int32
-		depth  int32
-	}
-	stack := []item{{p.Root, -1, -1, 0}}
-	l.Boxes = make([]NodeBox, 0, 64)
+	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
+	l.Boxes = make([]NodeBox, 0, max(lo.last, 16))
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
 		n := it.n
-		b := NodeBox{Node: n, Parent: int(it.parent), Branch: int(it.branch), Depth: int(it.depth)}
-		var nn *nodeNumbers
-		if r != nil {
-			nn = numbers(n)
+		k := len(l.Boxes)
+		var e *nodeEntry
+		if k < len(lo.nodes) && lo.nodes[k] == n {
+			e = lo.order[k]
+		} else {
+			e = lo.entries[n]
+			if e == nil {
+				e = &nodeEntry{}
+				lo.entries[n] = e
+			}
+			if k < len(lo.nodes) {
+				lo.nodes[k], lo.order[k] = n, e
+			} else {
+				lo.nodes, lo.order = append(lo.nodes, n), append(lo.order, e)
+			}
 		}
+		e.seen = lo.gen
+		b := NodeBox{Node: n, Parent: int(it.parent), Branch: int(it.branch), Depth: int(it.depth), NodeTexts: &e.NodeTexts}
+		var notes []string
 		if it.parent >= 0 {
 			parent := l.Boxes[it.parent].Node
-			br := parent.Branches[it.branch]
-			b.Label = fit(br.Label, th.LabelSize, th.MaxLabelWidth)
-			if parent.Kind == engine.Chance {
-				if r != nil {
-					b.Prob = run(numT, nn.prob.get(r.Probability(parent, int(it.branch)), formatP), th.NumberSize, false)
-				} else {
-					b.Prob = fit(br.Probability, th.NumberSize, th.MaxLabelWidth/2)
-				}
+			bi := int(it.branch)
+			br := parent.Branches[bi]
+			source(&e.Label, &e.labelSrc, br.Label, th.LabelSize, th.MaxLabelWidth)
+			switch {
+			case parent.Kind != engine.Chance:
+				e.Prob, e.probSrc = TextRun{}, ""
+			case r != nil:
+				number(&e.Prob, numT, e.prob.get(r.Probability(parent, bi), formatP), th.NumberSize, false)
+			default:
+				source(&e.Prob, &e.probSrc, br.Probability, th.NumberSize, th.MaxLabelWidth/2)
 			}
-			if strings.TrimSpace(br.Cash) != "" {
-				if r != nil {
-					b.Cash = run(numT, nn.cash.get(r.Cash(parent, int(it.branch)), format), th.NumberSize, false)
-				} else {
-					b.Cash = fit(br.Cash, th.NumberSize, th.MaxLabelWidth/2)
-				}
+			switch {
+			case strings.TrimSpace(br.Cash) == "":
+				e.Cash, e.cashSrc = TextRun{}, ""
+			case r != nil:
+				number(&e.Cash, numT, e.cash.get(r.Cash(parent, bi), format), th.NumberSize, false)
+			default:
+				source(&e.Cash, &e.cashSrc, br.Cash, th.NumberSize, th.MaxLabelWidth/2)
 			}
-			for _, s := range opts.notesFor(parent, int(it.branch), n) {
-				b.Notes = append(b.Notes, fit(s, th.NoteSize, th.MaxNoteWidth))
+			notes = opts.notesFor(parent, bi, n)
+		} else {
+			e.Label, e.Prob, e.Cash = TextRun{}, TextRun{}, TextRun{}
+		}
+		if !sameStrings(notes, e.notesSrc) {
+			e.notesSrc = notes
+			e.Notes = nil
+			for _, s := range notes {
+				e.Notes = append(e.Notes, fit(s, th.NoteSize, th.MaxNoteWidth))
 			}
 		}
-		if n.Kind == engine.End && !(n.Collapsed && len(n.Branches) > 0) {
+		collapsed := n.Collapsed && len(n.Branches) > 0
+		switch {
+		case n.Kind == engine.End && !collapsed:
+			e.Value = TextRun{}
 			if r != nil {
-				b.Payoff = run(valT, nn.payoff.get(r.PathValue(n), format), th.ValueSize, true)
-			} else if strings.TrimSpace(n.Payoff) != "" {
-				b.Payoff = fit(n.Payoff, th.ValueSize, th.MaxLabelWidth/2)
+				number(&e.Payoff, valT, e.payoff.get(r.PathValue(n), format), th.ValueSize, true)
+			} else {
+				source(&e.Payoff, &e.payoffSrc, n.Payoff, th.ValueSize, th.MaxLabelWidth/2)
 			}
-		} else if r != nil {
+		case r != nil:
+			e.Payoff = TextRun{}
 			v := r.ValueOf(n)
 			if opts.ShowCertaintyEquivalent {
 				if ce, ok := r.CertaintyEquivalent(n); ok {
 					v = ce
 				}
 			}
-			b.Value = run(valT, nn.value.get(v, format), th.ValueSize, true)
+			number(&e.Value, valT, e.value.get(v, format), th.ValueSize, true)
+		default:
+			e.Payoff, e.Value = TextRun{}, TextRun{}
 		}
-		if msgs := problems[n.ID]; len(msgs) > 0 {
+		if msgs := problems[n.ID]; !sameStrings(msgs, e.problemsSrc) {
+			e.problemsSrc = msgs
+			e.Problems = nil
 			for _, m := range msgs {
-				b.Problems = append(b.Problems, fit(m, th.NoteSize, th.MaxNoteWidth))
+				e.Problems = append(e.Problems, fit(m, th.NoteSize, th.MaxNoteWidth))
 			}
 		}
 		self := int32(len(l.Boxes))
-		if n.Collapsed && len(n.Branches) > 0 {
+		if collapsed {
 			hidden := -1
 			engine.Walk(n, func(*engine.Node, int) bool { hidden++; return true })
 			b.Hidden = hidden
-			word := " nodes hidden"
-			if hidden == 1 {
-				word = " node hidden"
+			if hidden != e.hiddenSrc || e.HiddenNote.Text == "" {
+				e.hiddenSrc = hidden
+				word := " nodes hidden"
+				if hidden == 1 {
+					word = " node hidden"
+				}
+				e.HiddenNote = fit("+"+itoa(hidden)+word, th.NoteSize, th.MaxNoteWidth)
 			}
-			b.HiddenNote = fit("+"+itoa(hidden)+word, th.NoteSize, th.MaxNoteWidth)
 		} else {
+			e.HiddenNote, e.hiddenSrc = TextRun{}, 0
 			for i := len(n.Branches) - 1; i >= 0; i-- {
 				if c := n.Branches[i].To; c != nil {
-					stack = append(stack, item{c, self, int32(i), it.depth + 1})
+					stack = append(stack, walkItem{c, self, int32(i), it.depth + 1})
 				}
 			}
 		}
 		l.Boxes = append(l.Boxes, b)
 	}
+	lo.stack = stack[:0]
+	lo.nodes, lo.order = lo.nodes[:len(l.Boxes)], lo.order[:len(l.Boxes)]
 
 	// Children lists: preorder makes a parent precede its children, and
 	// children of one parent appear in branch order.
-	counts := make([]int32, len(l.Boxes))
+	l.kids = make([]int32, len(l.Boxes))
+	counts := lo.scratch.int32s(&lo.scratch.counts, len(l.Boxes))
 	for i := 1; i < len(l.Boxes); i++ {
 		counts[l.Boxes[i].Parent]++
 	}
-	l.kids = make([]int32, len(l.Boxes))
 	var next int32
 	for i := range l.Boxes {
 		l.Boxes[i].kid0 = next
@@ -342,6 +420,30 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		l.kids[pb.kid0+pb.nkids] = int32(i)
 		pb.nkids++
 	}
+}
+
+// rowScratch holds the working arrays of placeRows between layouts.
+type rowScratch struct {
+	prelim, mod, shift, change, mid, modsum []float64
+	thread, ancestor, number, counts        []int32
+}
+
+func (s *rowScratch) floats(p *[]float64, n int) []float64 {
+	if cap(*p) < n {
+		*p = make([]float64, n, n+n/4)
+	}
+	*p = (*p)[:n]
+	clear(*p)
+	return *p
+}
+
+func (s *rowScratch) int32s(p *[]int32, n int) []int32 {
+	if cap(*p) < n {
+		*p = make([]int32, n, n+n/4)
+	}
+	*p = (*p)[:n]
+	clear(*p)
+	return *p
 }
 
 func itoa(n int) string {
@@ -443,20 +545,20 @@ func (lo *Layouter) columns(l *Layout) {
 // preorder (every descendant before its ancestor) and each node places its
 // children when it is visited; SECONDWALK runs in preorder. Both use O(n) time
 // and no recursion, so a chain thousands of nodes deep lays out.
-func placeRows(l *Layout) {
+func placeRows(l *Layout, sc *rowScratch) {
 	n := len(l.Boxes)
 	if n == 0 {
 		return
 	}
 	th := &l.Theme
-	prelim := make([]float64, n)
-	mod := make([]float64, n)
-	shift := make([]float64, n)
-	change := make([]float64, n)
-	mid := make([]float64, n)
-	thread := make([]int32, n)
-	ancestor := make([]int32, n)
-	number := make([]int32, n) // index among siblings
+	prelim := sc.floats(&sc.prelim, n)
+	mod := sc.floats(&sc.mod, n)
+	shift := sc.floats(&sc.shift, n)
+	change := sc.floats(&sc.change, n)
+	mid := sc.floats(&sc.mid, n)
+	thread := sc.int32s(&sc.thread, n)
+	ancestor := sc.int32s(&sc.ancestor, n)
+	number := sc.int32s(&sc.number, n) // index among siblings
 	for i := range thread {
 		thread[i] = -1
 		ancestor[i] = int32(i)
@@ -581,7 +683,7 @@ func placeRows(l *Layout) {
 	prelim[0] = mid[0]
 
 	// SECONDWALK, top-down in preorder: y = prelim + sum of the ancestors' mods.
-	modsum := make([]float64, n)
+	modsum := sc.floats(&sc.modsum, n)
 	for i := range boxes {
 		b := &boxes[i]
 		acc := 0.0

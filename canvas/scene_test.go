@@ -200,7 +200,9 @@ func TestProblemsAreMarked(t *testing.T) {
 }
 
 func TestSceneCullsToViewport(t *testing.T) {
-	p, r := evaluated(t, 1, 3000)
+	p := bigTree(3000)
+	r := engine.Evaluate(p)
+	require.True(t, r.Valid(), "%v", r.Problems)
 	l := LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
 	full := Build(p, r, l, DefaultOptions(), Rect{})
 	vp := Rect{l.Bounds.W / 3, l.Bounds.H / 2, 900, 600}
