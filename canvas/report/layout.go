@@ -1,6 +1,7 @@
 package report
 
 import (
+	"context"
 	"fmt"
 	"image/color"
 	"strings"
@@ -462,9 +463,12 @@ func (pg *pager) section(s Section) {
 }
 
 // render draws every page with its footer onto c.
-func (pg *pager) render(c *pdfCanvas, footer string) error {
+func (pg *pager) render(ctx context.Context, c *pdfCanvas, footer string) error {
 	n := len(pg.pages)
 	for i, ops := range pg.pages {
+		if ctx != nil && ctx.Err() != nil {
+			return ctx.Err()
+		}
 		c.NextPage()
 		for _, o := range ops {
 			if err := o(c); err != nil {

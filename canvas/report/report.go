@@ -150,7 +150,7 @@ func Write(ctx context.Context, w io.Writer, p *engine.Project, r *engine.Result
 		pg.section(s)
 	}
 	c := newPDFCanvas(size[0], size[1], reportTitle(p), preparedBy(p, o), o.Date)
-	if err := pg.render(c, reportTitle(p)); err != nil {
+	if err := pg.render(ctx, c, reportTitle(p)); err != nil {
 		return err
 	}
 	_, err = c.WriteTo(w)

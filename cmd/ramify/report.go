@@ -6,45 +6,16 @@ import (
 	"io"
 	"strings"
 
-	"gonum.org/v1/plot/vg"
-
-	"github.com/ramify-app/ramify/canvas"
 	"github.com/ramify-app/ramify/canvas/report"
-	"github.com/ramify-app/ramify/engine"
+	"github.com/ramify-app/ramify/ui"
 )
 
 func init() {
 	register("report", "write the decision report as PDF (-o FILE, --page A4|Letter, --theme print|colour, --prepared-by NAME)", runReport)
 }
 
-// reportTree draws the report's tree diagram with the canvas, in the print
-// theme (or the light theme for a colour report).
-func reportTree(p *engine.Project, r *engine.Result, theme string) (report.TreeDiagram, error) {
-	th := canvas.PrintTheme()
-	if theme == "colour" {
-		th = canvas.LightTheme()
-	}
-	opts := canvas.Options{Theme: th, RevealColumns: -1}
-	l := canvas.LayoutTree(p, r, canvas.FontMeasurer{}, opts)
-	return &treeDiagram{p: p, r: r, opts: opts, w: vg.Length(l.Bounds.W), h: vg.Length(l.Bounds.H)}, nil
-}
-
-type treeDiagram struct {
-	p    *engine.Project
-	r    *engine.Result
-	opts canvas.Options
-	w, h vg.Length
-}
-
-func (d *treeDiagram) Size() (vg.Length, vg.Length) { return d.w, d.h }
-
-// Draw relies on DrawTree's fit: a rect of exactly k times the natural size
-// draws the tree at scale k with its top-left corner at the rect's.
-func (d *treeDiagram) Draw(c vg.Canvas, topLeft vg.Point, k float64) error {
-	rect := vg.Rectangle{Min: vg.Point{X: topLeft.X, Y: topLeft.Y - d.h*vg.Length(k)},
-		Max: vg.Point{X: topLeft.X + d.w*vg.Length(k), Y: topLeft.Y}}
-	return canvas.DrawTree(c, rect, d.p, d.r, d.opts)
-}
+// reportTree draws the diagram with the canvas, as the app's report does.
+var reportTree report.TreeDrawer = ui.ReportTree
 
 func runReport(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("report", stderr)
