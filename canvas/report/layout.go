@@ -302,6 +302,7 @@ func (pg *pager) table(t *Table) {
 		f, fb = face(9, false, false), face(9, true, false)
 	}
 	const indentStep = 10
+	t = dropEmptyColumns(t)
 	cols := len(t.Header)
 	natural := make([]vg.Length, cols)
 	for i, h := range t.Header {
@@ -391,6 +392,51 @@ func (pg *pager) table(t *Table) {
 	pg.y += 6
 }
 
+// dropEmptyColumns leaves out columns with no text in any row.
+func dropEmptyColumns(t *Table) *Table {
+	keep := make([]bool, len(t.Header))
+	drop := false
+	for c := range t.Header {
+		for _, row := range t.Rows {
+			if c < len(row) && strings.TrimSpace(row[c]) != "" {
+				keep[c] = true
+			}
+		}
+		if !keep[c] {
+			drop = true
+		}
+	}
+	if !drop || len(t.Rows) == 0 {
+		return t
+	}
+	pick := func(cells []string) []string {
+		var out []string
+		for c, k := range keep {
+			if k && c < len(cells) {
+				out = append(out, cells[c])
+			}
+		}
+		return out
+	}
+	out := *t
+	out.Header = pick(t.Header)
+	out.Rows = make([][]string, len(t.Rows))
+	for i, row := range t.Rows {
+		out.Rows[i] = pick(row)
+	}
+	out.Align = nil
+	for c, k := range keep {
+		if k {
+			a := Left
+			if c < len(t.Align) {
+				a = t.Align[c]
+			}
+			out.Align = append(out.Align, a)
+		}
+	}
+	return &out
+}
+
 func sumLengths(ls []vg.Length) vg.Length {
 	s := vg.Length(0)
 	for _, l := range ls {
@@ -446,6 +492,10 @@ func (pg *pager) chart(p *plot.Plot, hgt vg.Length) {
 func (pg *pager) section(s Section) {
 	if s.NewPage && pg.started {
 		pg.newPage()
+	}
+	if s.Figure != nil && s.FigureHeight > 0 && !s.Behind {
+		// Keep the heading and intro with a figure of known height.
+		pg.need(s.FigureHeight + lineHeight(pg.f.h1) + vg.Length(len(s.Paragraphs)*3)*lineHeight(pg.f.body))
 	}
 	if s.Title != "" {
 		pg.heading(s.Title)

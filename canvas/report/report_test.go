@@ -278,6 +278,16 @@ func TestColumnWidths(t *testing.T) {
 	}
 }
 
+func TestDropEmptyColumns(t *testing.T) {
+	in := &Table{Header: []string{"a", "b", "c"}, Align: []Align{Left, Right, Right},
+		Rows: [][]string{{"1", "", "x"}, {"2", " ", "y"}}}
+	out := dropEmptyColumns(in)
+	assert.Equal(t, []string{"a", "c"}, out.Header)
+	assert.Equal(t, [][]string{{"1", "x"}, {"2", "y"}}, out.Rows)
+	assert.Equal(t, []Align{Left, Right}, out.Align)
+	assert.Len(t, in.Header, 3, "the input table is left alone")
+}
+
 // bigProject grows a random valid tree of about n nodes with variables and
 // formulas, deterministically from seed.
 func bigProject(n int, seed uint64) *engine.Project {

@@ -83,7 +83,7 @@ func treeSection(in *Input) ([]Section, error) {
 	areaW, areaH := in.page.textW, in.page.textH-70
 	k := min(1, float64(areaW/w), float64(areaH/h))
 	if k >= minFitScale {
-		return []Section{{Title: "Decision tree", NewPage: true, Paragraphs: []string{intro},
+		return []Section{{Title: "Decision tree", Paragraphs: []string{intro}, FigureHeight: vg.Length(float64(h)*k) + 4,
 			Figure: func(c vg.Canvas, rect vg.Rectangle) error {
 				kk := min(1, float64((rect.Max.X-rect.Min.X)/w), float64((rect.Max.Y-rect.Min.Y)/h))
 				return d.Draw(c, vg.Point{X: rect.Min.X, Y: rect.Max.Y}, kk)
