@@ -85,6 +85,10 @@ func TestExplainReAddsExactly(t *testing.T) {
 					assert.Equal(t, r.RuleWord(), e.Rule)
 					assert.Equal(t, r.Choice(n), e.Choice)
 				}
+				if ce, ok := r.CertaintyEquivalent(n); ok && n.Kind != End {
+					assert.Equal(t, ce.String(), e.CE)
+					assert.Contains(t, e.Text(), r.Format(ce), "the certainty equivalent is shown")
+				}
 			}
 		})
 	}
