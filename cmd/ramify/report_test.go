@@ -146,6 +146,9 @@ func thousandNodes(tb testing.TB) (*engine.Project, *engine.Result) {
 }
 
 func TestThousandNodeReportWithTree(t *testing.T) {
+	if testing.Short() {
+		t.Skip("a 1,000-node report takes seconds")
+	}
 	if _, err := exec.LookPath("pdfinfo"); err != nil {
 		t.Skip("pdfinfo (poppler-utils) is not installed")
 	}
