@@ -639,14 +639,43 @@ func CertaintyEquivalent(probs, values []float64, R float64) float64 {
 		return 0
 	}
 	m := math.Inf(-1)
-	for _, x := range values {
-		m = math.Max(m, -x/R)
+	for k, x := range values {
+		if probs[k] > 0 { // an impossible outcome must not set the shift (it would underflow the sum to 0)
+			m = math.Max(m, -x/R)
+		}
+	}
+	if math.IsInf(m, -1) {
+		return 0
+	}
+	if math.IsInf(R, 0) || math.IsInf(m, 1) {
+		return ceLimit(probs, values, R) // R so large or so small that the exponents overflow
 	}
 	s := 0.0
 	for k, x := range values {
-		s += probs[k] * math.Exp(-x/R-m)
+		if probs[k] > 0 {
+			s += probs[k] * math.Exp(-x/R-m)
+		}
 	}
 	return -R * (m + math.Log(s))
+}
+
+// ceLimit is the CE at the limits of R: the EV as |R| → ∞, the worst possible
+// outcome as R → 0⁺ and the best as R → 0⁻.
+func ceLimit(probs, values []float64, R float64) float64 {
+	ev, lo, hi := 0.0, math.Inf(1), math.Inf(-1)
+	for k, x := range values {
+		if probs[k] > 0 {
+			ev += probs[k] * x
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	switch {
+	case math.IsInf(R, 0):
+		return ev
+	case R > 0:
+		return lo
+	}
+	return hi
 }
 
 // ParseTolerance evaluates a risk tolerance text: a non-zero finite number.
