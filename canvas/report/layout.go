@@ -258,9 +258,10 @@ func (pg *pager) heading(s string) {
 const cellPad = 4
 
 // columnWidths gives each column its natural width when everything fits, and
-// otherwise shares the line fairly: narrow columns keep their width, wide
-// ones split what is left (water-filling).
-func columnWidths(natural []vg.Length, total vg.Length) []vg.Length {
+// otherwise shares the line fairly: narrow columns keep their width, wide ones
+// split what is left (water-filling), but none goes below its minimum (its
+// longest word), so words are not broken when they need not be.
+func columnWidths(natural, minimum []vg.Length, total vg.Length) []vg.Length {
 	out := append([]vg.Length(nil), natural...)
 	sum := vg.Length(0)
 	for _, w := range natural {
@@ -275,15 +276,28 @@ func columnWidths(natural []vg.Length, total vg.Length) []vg.Length {
 		changed = false
 		share := left / vg.Length(flex)
 		for i, w := range natural {
-			if !fixed[i] && w <= share {
-				fixed[i], changed = true, true
-				left -= w
-				flex--
+			if fixed[i] {
+				continue
 			}
+			lo := vg.Length(0)
+			if i < len(minimum) {
+				lo = minimum[i]
+			}
+			switch {
+			case w <= share:
+				out[i] = w
+			case lo >= share:
+				out[i] = lo
+			default:
+				continue
+			}
+			fixed[i], changed = true, true
+			left -= out[i]
+			flex--
 		}
 	}
 	if flex > 0 {
-		share := left / vg.Length(flex)
+		share := max(left/vg.Length(flex), 0)
 		for i := range out {
 			if !fixed[i] {
 				out[i] = share
@@ -293,35 +307,63 @@ func columnWidths(natural []vg.Length, total vg.Length) []vg.Length {
 	return out
 }
 
+// longestWord is the width of the widest word of s.
+func longestWord(f font.Face, s string) vg.Length {
+	w := vg.Length(0)
+	for _, word := range strings.Fields(s) {
+		w = max(w, f.Width(word))
+	}
+	return w
+}
+
 func (pg *pager) table(t *Table) {
 	if t == nil || len(t.Header) == 0 {
 		return
 	}
-	f, fb := pg.f.body, pg.f.bold
+	size := vg.Length(10)
 	if len(t.Header) > 5 || len(t.Rows) > 40 {
-		f, fb = face(9, false, false), face(9, true, false)
+		size = 9
 	}
 	const indentStep = 10
 	t = dropEmptyColumns(t)
 	cols := len(t.Header)
-	natural := make([]vg.Length, cols)
-	for i, h := range t.Header {
-		natural[i] = fb.Width(h) + 2*cellPad
-	}
-	for r, row := range t.Rows {
-		for i := 0; i < cols && i < len(row); i++ {
-			fc := f
-			if r < len(t.Highlight) && t.Highlight[r] {
-				fc = fb
-			}
-			w := fc.Width(row[i]) + 2*cellPad
-			if i == 0 && r < len(t.Indent) {
-				w += vg.Length(t.Indent[r]) * indentStep
-			}
-			natural[i] = max(natural[i], w)
+	measure := func(f, fb font.Face) (natural, minimum []vg.Length) {
+		natural = make([]vg.Length, cols)
+		minimum = make([]vg.Length, cols)
+		for i, h := range t.Header {
+			natural[i] = fb.Width(h) + 2*cellPad
+			minimum[i] = longestWord(fb, h) + 2*cellPad
 		}
+		for r, row := range t.Rows {
+			for i := 0; i < cols && i < len(row); i++ {
+				fc := f
+				if r < len(t.Highlight) && t.Highlight[r] {
+					fc = fb
+				}
+				w := fc.Width(row[i]) + 2*cellPad
+				if i == 0 && r < len(t.Indent) {
+					w += vg.Length(t.Indent[r]) * indentStep
+				}
+				natural[i] = max(natural[i], w)
+				// Numbers and short cells keep their width; long text may wrap.
+				if len(row[i]) <= 24 {
+					minimum[i] = max(minimum[i], w)
+				} else {
+					minimum[i] = max(minimum[i], min(longestWord(fc, row[i])+2*cellPad, pg.textWidth()/vg.Length(cols)))
+				}
+			}
+		}
+		return natural, minimum
 	}
-	widths := columnWidths(natural, pg.textWidth())
+	f, fb := face(size, false, false), face(size, true, false)
+	natural, minimum := measure(f, fb)
+	// A wide table is set smaller (down to 7 pt) rather than run off the page.
+	if need := sumLengths(minimum); need > pg.textWidth() && size > 7 {
+		size = max(7, size*pg.textWidth()/need)
+		f, fb = face(size, false, false), face(size, true, false)
+		natural, minimum = measure(f, fb)
+	}
+	widths := columnWidths(natural, minimum, pg.textWidth())
 	align := func(i int) Align {
 		if i < len(t.Align) {
 			return t.Align[i]

@@ -14,12 +14,14 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"sort"
 	"strings"
 	"time"
 
 	"gonum.org/v1/plot/vg"
 
 	"github.com/ramify-app/ramify/engine"
+	"github.com/ramify-app/ramify/engine/analysis"
 )
 
 // TreeDiagram is the tree drawing the canvas provides (canvas.DrawTree).
@@ -50,6 +52,9 @@ type Input struct {
 	Result  *engine.Result
 	Options Options
 	page    pageArea
+
+	risk    *analysis.Analysis // computed once by riskAnalysis
+	riskErr error
 }
 
 // pageArea is the text area of a page, for sections that size figures to it.
@@ -59,18 +64,24 @@ type pageArea struct{ textW, textH vg.Length }
 // not apply to the project (no data, wrong shape).
 type Builder struct {
 	Name  string
+	Order int // place among the analysis sections, lowest first
 	Build func(in *Input) ([]Section, error)
 }
 
 // AnalysisSections is the registration point for the analyses' sections (risk
 // profile, tornado, break-evens, value of information, simulation summary).
 // Each analysis adds its builder here from an init function with
-// RegisterAnalysis; the report places them, in order, between the path table
-// and the assumptions.
+// RegisterAnalysis; the report places them by Order between the path table
+// and the assumptions. analyses.go registers those on main and lists the
+// orders; the tornado (20) and break-evens (30) are still to come.
 var AnalysisSections []Builder
 
-// RegisterAnalysis appends an analysis section builder.
-func RegisterAnalysis(b Builder) { AnalysisSections = append(AnalysisSections, b) }
+// RegisterAnalysis adds an analysis section builder, keeping the list in order.
+func RegisterAnalysis(b Builder) {
+	// A fresh slice each time, so a copy taken earlier is never reordered.
+	AnalysisSections = append(append([]Builder(nil), AnalysisSections...), b)
+	sort.SliceStable(AnalysisSections, func(i, j int) bool { return AnalysisSections[i].Order < AnalysisSections[j].Order })
+}
 
 // pageSizes in points, portrait (ISO 216 A4; ANSI Letter).
 var pageSizes = map[string][2]vg.Length{"a4": {595.28, 841.89}, "letter": {612, 792}}
@@ -103,14 +114,14 @@ func Sections(in *Input) ([]Section, error) {
 		return nil, fmt.Errorf("the project has %d problem(s); fix them before writing a report (first: %s)", len(r.Problems), r.Problems[0].Msg)
 	}
 	builders := []Builder{
-		{"title page", titlePage},
-		{"recommendation", recommendation},
-		{"tree", treeSection},
-		{"strategy table", strategyTable},
-		{"path table", pathTable},
+		{Name: "title page", Build: titlePage},
+		{Name: "recommendation", Build: recommendation},
+		{Name: "tree", Build: treeSection},
+		{Name: "strategy table", Build: strategyTable},
+		{Name: "path table", Build: pathTable},
 	}
 	builders = append(builders, AnalysisSections...)
-	builders = append(builders, Builder{"assumptions", assumptions}, Builder{"caution", caution})
+	builders = append(builders, Builder{Name: "assumptions", Build: assumptions}, Builder{Name: "caution", Build: caution})
 	var out []Section
 	for _, b := range builders {
 		if in.Ctx != nil {

@@ -23,6 +23,7 @@ import (
 	"gonum.org/v1/plot/vg"
 
 	"github.com/ramify-app/ramify/engine"
+	"github.com/ramify-app/ramify/engine/analysis"
 )
 
 var demoFile = filepath.Join("..", "..", "assets", "demos", "chiller-cover.ramify.json")
@@ -65,10 +66,23 @@ func pdfPages(t *testing.T, path string) int {
 // squash joins wrapped lines so sentences can be searched whole.
 func squash(s string) string { return strings.Join(strings.Fields(s), " ") }
 
-// engineFigures is every value the engine can print for the project: the report
-// may show no other amount.
-func engineFigures(r *engine.Result) map[string]bool {
+// engineFigures is every value the engine and its analyses can print for the
+// project: the report may show no other amount.
+func engineFigures(t *testing.T, r *engine.Result) map[string]bool {
 	set := map[string]bool{r.Format(r.Value()): true}
+	a, err := analysis.Analyse(r.Project, analysis.Options{})
+	require.NoError(t, err)
+	for _, row := range a.TableCells() {
+		for _, cell := range row {
+			set[cell] = true
+		}
+	}
+	voi, err := analysis.EVPI(r.Project, analysis.VOIOptions{})
+	require.NoError(t, err)
+	set[voi.Format(voi.Without)] = true
+	for _, f := range append([]analysis.EVPIFigure{voi.Whole}, voi.Nodes...) {
+		set[voi.Format(f.With)], set[voi.Format(f.EVPI)] = true, true
+	}
 	for _, n := range r.Nodes {
 		set[r.Format(r.ValueOf(n))] = true
 		set[r.Format(r.DisplayValue(n))] = true
@@ -142,7 +156,7 @@ func TestReportOpensInPoppler(t *testing.T) {
 			}
 
 			// Every amount printed with the unit is one the engine computed.
-			figures := engineFigures(r)
+			figures := engineFigures(t, r)
 			amounts := regexp.MustCompile(`−?\d[\d,]*(?:\.\d+)? `+regexp.QuoteMeta(tc.p.Currency)).FindAllString(flat, -1)
 			require.NotEmpty(t, amounts)
 			for _, a := range amounts {
@@ -178,6 +192,41 @@ func TestReportRejectsBadInput(t *testing.T) {
 	data, err := os.ReadFile(path)
 	require.NoError(t, err)
 	assert.Equal(t, "earlier report", string(data), "a failed report must not replace the earlier file")
+}
+
+// The analyses on main each get their section, in order, with their figures.
+func TestAnalysisSections(t *testing.T) {
+	p, _ := loadDemo(t)
+	p.Variable("rent_week").Dist = &engine.Distribution{Kind: engine.DistTriangular, Min: "7000", Mode: "9500", Max: "13000"}
+	r := engine.Evaluate(p)
+	require.True(t, r.Valid())
+	path := writeReport(t, p, r, Options{})
+	flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
+	order := []string{"Strategies", "Outcomes (path table)", "Risk profile", "Value of information", "Simulation summary", "Assumptions", "Caution"}
+	last := -1
+	for _, title := range order {
+		at := strings.Index(flat, title)
+		require.GreaterOrEqual(t, at, 0, title)
+		assert.Greater(t, at, last, "%s comes after the section before it", title)
+		last = at
+	}
+	voi, err := analysis.EVPI(p, analysis.VOIOptions{})
+	require.NoError(t, err)
+	if voi.Whole.Valid {
+		assert.Contains(t, flat, "Every uncertainty "+voi.Format(voi.Whole.With)+" "+voi.Format(voi.Whole.EVPI))
+	} else {
+		// The demo's uncertainties lie on some branches only: the reason is printed instead.
+		assert.Contains(t, flat, squash(voi.Whole.Reason))
+	}
+	sim, err := analysis.Simulate(context.Background(), p, analysis.SimOptions{N: reportSimIterations, Seed: reportSimSeed, Mode: analysis.SimParameters})
+	require.NoError(t, err)
+	assert.Contains(t, flat, "Base case "+r.Format(decimal.NewFromFloat(sim.Base)))
+	assert.Contains(t, flat, "Mean (± standard error) "+r.Format(decimal.NewFromFloat(sim.Value.Mean)))
+	a, err := analysis.Analyse(p, analysis.Options{})
+	require.NoError(t, err)
+	for _, s := range analysis.DominanceSummary(a.Profiles, a.Dominance) {
+		assert.Contains(t, flat, squash(s))
+	}
 }
 
 // A registered analysis section lands between the path table and the assumptions,
@@ -262,18 +311,19 @@ func TestTreeDiagramFitOrTiled(t *testing.T) {
 
 func TestColumnWidths(t *testing.T) {
 	tests := []struct {
-		name    string
-		natural []vg.Length
-		total   vg.Length
-		want    []vg.Length
+		name             string
+		natural, minimum []vg.Length
+		total            vg.Length
+		want             []vg.Length
 	}{
-		{"fits", []vg.Length{10, 20}, 100, []vg.Length{10, 20}},
-		{"wide column shares what is left", []vg.Length{10, 300, 20}, 100, []vg.Length{10, 70, 20}},
-		{"two wide columns split evenly", []vg.Length{10, 300, 200}, 110, []vg.Length{10, 50, 50}},
+		{"fits", []vg.Length{10, 20}, nil, 100, []vg.Length{10, 20}},
+		{"wide column shares what is left", []vg.Length{10, 300, 20}, nil, 100, []vg.Length{10, 70, 20}},
+		{"two wide columns split evenly", []vg.Length{10, 300, 200}, nil, 110, []vg.Length{10, 50, 50}},
+		{"a minimum is kept", []vg.Length{10, 300, 200}, []vg.Length{5, 70, 20}, 110, []vg.Length{10, 70, 30}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			assert.Equal(t, tc.want, columnWidths(tc.natural, tc.total))
+			assert.Equal(t, tc.want, columnWidths(tc.natural, tc.minimum, tc.total))
 		})
 	}
 }
@@ -293,7 +343,8 @@ func TestDropEmptyColumns(t *testing.T) {
 func bigProject(n int, seed uint64) *engine.Project {
 	rng := rand.New(rand.NewPCG(seed, 7))
 	p := &engine.Project{Title: "Generated plant upgrade", Objective: engine.Maximize, Currency: "$", Decimals: 0,
-		Variables: []*engine.Variable{{Name: "base", Value: "12000", Low: "9000", High: "15000", Note: "Base margin"},
+		Variables: []*engine.Variable{{Name: "base", Value: "12000", Low: "9000", High: "15000", Note: "Base margin",
+			Dist: &engine.Distribution{Kind: engine.DistPERT, Min: "9000", Mode: "12000", Max: "15000"}},
 			{Name: "k", Value: "1.5", Low: "1", High: "2", Note: "Scale"}}}
 	id := 0
 	next := func(kind engine.Kind) *engine.Node {
@@ -355,4 +406,7 @@ func TestBigReportReads(t *testing.T) {
 	flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
 	assert.Contains(t, flat, fmt.Sprintf("Page %d of %d", pages, pages))
 	assert.Contains(t, flat, r.Format(r.Value()))
+	for _, title := range []string{"Strategies", "Outcomes (path table)", "Risk profile", "Value of information", "Simulation summary", "Assumptions", "Caution"} {
+		assert.True(t, strings.Contains(flat, title), "%q is missing from the 1,000-node report", title)
+	}
 }

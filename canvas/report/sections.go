@@ -167,47 +167,6 @@ func kindMark(k engine.Kind) string {
 	return "◄"
 }
 
-// strategyTable prints engine.StrategyRowsCSV, the hook the strategy analysis
-// fills in: exact decimal cells are formatted as values (or probabilities, in a
-// column whose header says so), "true" marks the recommended row.
-func strategyTable(in *Input) ([]Section, error) {
-	r := in.Result
-	rows := engine.StrategyRowsCSV(r)
-	if len(rows) < 2 {
-		return nil, nil
-	}
-	t := &Table{Header: titleCase(rows[0])}
-	for c := range rows[0] {
-		t.Align = append(t.Align, Left)
-		if c < len(rows[1]) && isDecimal(rows[1][c]) {
-			t.Align[c] = Right
-		}
-	}
-	for _, row := range rows[1:] {
-		cells := make([]string, len(row))
-		mark := false
-		for c, cell := range row {
-			head := strings.ToLower(rows[0][min(c, len(rows[0])-1)])
-			switch {
-			case cell == "true":
-				cells[c], mark = "yes", mark || strings.Contains(head, "recommend")
-			case cell == "false":
-				cells[c] = ""
-			case isDecimal(cell) && strings.Contains(head, "prob"):
-				cells[c] = engine.FormatProbability(decimal.RequireFromString(cell))
-			case isDecimal(cell):
-				cells[c] = r.Format(decimal.RequireFromString(cell))
-			default:
-				cells[c] = cell
-			}
-		}
-		t.Rows = append(t.Rows, cells)
-		t.Highlight = append(t.Highlight, mark)
-	}
-	return []Section{{Title: "Strategies", Table: t,
-		Paragraphs: []string{fmt.Sprintf("Each alternative of the first decision, valued by its %s with the later decisions made as recommended.", r.ValueWord())}}}, nil
-}
-
 func titleCase(hs []string) []string {
 	out := make([]string, len(hs))
 	for i, h := range hs {

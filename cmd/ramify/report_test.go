@@ -136,6 +136,8 @@ func thousandNodes(tb testing.TB) (*engine.Project, *engine.Result) {
 	for seed := uint64(1); seed < 1000; seed++ {
 		p := enginetest.RandomProject(rand.New(rand.NewPCG(seed, 9)), enginetest.Options{Nodes: 1000, UseCash: true, UseVars: true, UseRest: true})
 		if len(p.Nodes()) >= 1000 {
+			// A distribution, so the simulation section is in the report too.
+			p.Variables[0].Dist = &engine.Distribution{Kind: engine.DistTriangular, Min: "-60", Mode: p.Variables[0].Value, Max: "160"}
 			r := engine.Evaluate(p)
 			require.True(tb, r.Valid(), "%v", r.Problems)
 			return p, r
@@ -161,5 +163,8 @@ func TestThousandNodeReportWithTree(t *testing.T) {
 	require.NoError(t, err, string(info))
 	text, err := exec.Command("pdftotext", out, "-").CombinedOutput()
 	require.NoError(t, err)
-	assert.Contains(t, string(text), "Decision tree, part 1 of")
+	for _, title := range []string{"Decision tree, part 1 of", "Strategies", "Outcomes (path table)", "Risk profile",
+		"Value of information", "Simulation summary", "Assumptions", "Caution"} {
+		assert.Contains(t, string(text), title, "every section is in the 1,000-node report")
+	}
 }
