@@ -16,10 +16,12 @@ import (
 //
 // Order of the analysis sections (RegisterAnalysis sorts by it):
 //
-//	10 risk profile   20 tornado (not yet on main)   30 break-evens (not yet on main)
-//	40 value of information   50 simulation summary
+//	10 risk profile   20 tornado   30 break-evens   40 value of information
+//	50 simulation summary
 func init() {
 	RegisterAnalysis(Builder{Name: "risk profile", Order: 10, Build: riskProfileSection})
+	RegisterAnalysis(Builder{Name: "tornado", Order: 20, Build: tornadoSection})
+	RegisterAnalysis(Builder{Name: "break-evens", Order: 30, Build: breakEvenSection})
 	RegisterAnalysis(Builder{Name: "value of information", Order: 40, Build: voiSection})
 	RegisterAnalysis(Builder{Name: "simulation summary", Order: 50, Build: simulationSection})
 }
@@ -168,4 +170,85 @@ func simulationSection(in *Input) ([]Section, error) {
 		secs = append(secs, s)
 	}
 	return secs, nil
+}
+
+func tornadoSection(in *Input) ([]Section, error) {
+	pc := in.Project.Clone() // the tornado evaluates the project it is given
+	t, err := analysis.Tornado(in.Ctx, pc, engine.Evaluate(pc))
+	if err != nil {
+		return nil, err
+	}
+	if len(t.Bars) == 0 {
+		return nil, nil
+	}
+	r := in.Result
+	tab := &Table{Header: []string{"Variable", "Low – high", "Value at low", "Value at high", "Swing", "Changes the choice"},
+		Align: []Align{Left, Left, Right, Right, Right, Left}}
+	for _, b := range t.Bars {
+		flips := ""
+		if b.Flips {
+			flips = "yes"
+		}
+		tab.Rows = append(tab.Rows, []string{b.Variable, exactNumber(b.Low) + " – " + exactNumber(b.High),
+			r.Format(b.AtLow), r.Format(b.AtHigh), r.Format(b.Swing), flips})
+		tab.Highlight = append(tab.Highlight, b.Flips)
+	}
+	paras := []string{fmt.Sprintf("Each bar shows the %s as one variable moves across its low–high range with the others at their values (base %s), largest swing first.",
+		t.ValueWord, r.Format(t.Base))}
+	if len(t.Skipped) > 0 {
+		paras = append(paras, "Left out: "+strings.Join(t.Skipped, "; ")+".")
+	}
+	chart, err := t.Chart()
+	if err != nil {
+		return nil, err
+	}
+	return []Section{{Title: "Tornado diagram", Paragraphs: paras, Table: tab, Chart: chart}}, nil
+}
+
+// shownInput rounds an input value found by a search to six significant
+// figures (never fewer decimals than the project shows), for reading.
+func shownInputValue(d decimal.Decimal, decimals int) string {
+	mag := int(d.NumDigits()) + int(d.Exponent())
+	places := min(max(6-mag, decimals, 0), 12)
+	return engine.FormatNumber(d.Round(int32(places)), places)
+}
+
+func breakEvenSection(in *Input) ([]Section, error) {
+	p, r := in.Project, in.Result
+	if p.Root.Kind != engine.Decision {
+		return nil, nil
+	}
+	tab := &Table{Header: []string{"Variable", "Break-even", "Best below", "Best above", "Value there"},
+		Align: []Align{Left, Right, Left, Left, Right}}
+	var none []string
+	for _, v := range p.Variables {
+		if strings.TrimSpace(v.Low) == "" || strings.TrimSpace(v.High) == "" {
+			continue
+		}
+		pc := p.Clone()
+		s, err := analysis.Sweep(in.Ctx, pc, engine.Evaluate(pc), analysis.VariableInput(v.Name), analysis.SweepOptions{})
+		if err != nil {
+			return nil, fmt.Errorf("variable %q: %w", v.Name, err)
+		}
+		if len(s.BreakEvens) == 0 {
+			none = append(none, v.Name)
+			continue
+		}
+		for _, b := range s.BreakEvens {
+			tab.Rows = append(tab.Rows, []string{v.Name, shownInputValue(b.At, p.Decimals), s.Alternatives[b.From], s.Alternatives[b.To], r.Format(b.Value)})
+		}
+	}
+	if len(tab.Rows) == 0 && len(none) == 0 {
+		return nil, nil
+	}
+	paras := []string{fmt.Sprintf("A break-even is a value of one input, the others at their values, at which the best alternative at %q changes.",
+		engine.NodeTitle(p.Root))}
+	if len(none) > 0 {
+		paras = append(paras, "The best alternative stays the same across the whole range of "+strings.Join(none, ", ")+".")
+	}
+	sec := Section{Title: "Break-evens", Paragraphs: paras}
+	if len(tab.Rows) > 0 {
+		sec.Table = tab
+	}
+	return []Section{sec}, nil
 }

@@ -83,6 +83,21 @@ func engineFigures(t *testing.T, r *engine.Result) map[string]bool {
 	for _, f := range append([]analysis.EVPIFigure{voi.Whole}, voi.Nodes...) {
 		set[voi.Format(f.With)], set[voi.Format(f.EVPI)] = true, true
 	}
+	pc := r.Project.Clone()
+	tor, err := analysis.Tornado(context.Background(), pc, engine.Evaluate(pc))
+	require.NoError(t, err)
+	set[r.Format(tor.Base)] = true
+	for _, b := range tor.Bars {
+		set[r.Format(b.AtLow)], set[r.Format(b.AtHigh)], set[r.Format(b.Swing)] = true, true, true
+	}
+	for _, v := range r.Project.Variables {
+		pc := r.Project.Clone()
+		sw, err := analysis.Sweep(context.Background(), pc, engine.Evaluate(pc), analysis.VariableInput(v.Name), analysis.SweepOptions{})
+		require.NoError(t, err)
+		for _, b := range sw.BreakEvens {
+			set[r.Format(b.Value)] = true
+		}
+	}
 	for _, n := range r.Nodes {
 		set[r.Format(r.ValueOf(n))] = true
 		set[r.Format(r.DisplayValue(n))] = true
@@ -202,7 +217,8 @@ func TestAnalysisSections(t *testing.T) {
 	require.True(t, r.Valid())
 	path := writeReport(t, p, r, Options{})
 	flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
-	order := []string{"Strategies", "Outcomes (path table)", "Risk profile", "Value of information", "Simulation summary", "Assumptions", "Caution"}
+	order := []string{"Strategies", "Outcomes (path table)", "Risk profile", "Tornado diagram", "Break-evens", "Value of information",
+		"Simulation summary", "Assumptions", "Caution"}
 	last := -1
 	for _, title := range order {
 		at := strings.Index(flat, title)
@@ -222,6 +238,12 @@ func TestAnalysisSections(t *testing.T) {
 	require.NoError(t, err)
 	assert.Contains(t, flat, "Base case "+r.Format(decimal.NewFromFloat(sim.Base)))
 	assert.Contains(t, flat, "Mean (± standard error) "+r.Format(decimal.NewFromFloat(sim.Value.Mean)))
+	pc := p.Clone()
+	tor, err := analysis.Tornado(context.Background(), pc, engine.Evaluate(pc))
+	require.NoError(t, err)
+	require.NotEmpty(t, tor.Bars)
+	top := tor.Bars[0]
+	assert.Contains(t, flat, top.Variable+" "+exactNumber(top.Low)+" – "+exactNumber(top.High)+" "+r.Format(top.AtLow)+" "+r.Format(top.AtHigh)+" "+r.Format(top.Swing))
 	a, err := analysis.Analyse(p, analysis.Options{})
 	require.NoError(t, err)
 	for _, s := range analysis.DominanceSummary(a.Profiles, a.Dominance) {
@@ -406,7 +428,8 @@ func TestBigReportReads(t *testing.T) {
 	flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
 	assert.Contains(t, flat, fmt.Sprintf("Page %d of %d", pages, pages))
 	assert.Contains(t, flat, r.Format(r.Value()))
-	for _, title := range []string{"Strategies", "Outcomes (path table)", "Risk profile", "Value of information", "Simulation summary", "Assumptions", "Caution"} {
+	for _, title := range []string{"Strategies", "Outcomes (path table)", "Risk profile", "Tornado diagram", "Break-evens",
+		"Value of information", "Simulation summary", "Assumptions", "Caution"} {
 		assert.True(t, strings.Contains(flat, title), "%q is missing from the 1,000-node report", title)
 	}
 }

@@ -3,7 +3,6 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"path/filepath"
 	"testing"
 
 	"github.com/shopspring/decimal"
@@ -13,12 +12,10 @@ import (
 	"github.com/ramify-app/ramify/engine"
 )
 
-var demoFile = filepath.Join("..", "..", "assets", "demos", "chiller-cover.ramify.json")
-
 // Every node's printed JSON terms re-add exactly to the value `eval --json` reports.
 func TestExplainCLIReAddsToEval(t *testing.T) {
 	var out, errOut bytes.Buffer
-	require.Equal(t, exitOK, run([]string{"eval", demoFile, "--json"}, &out, &errOut), errOut.String())
+	require.Equal(t, exitOK, run([]string{"eval", demo, "--json"}, &out, &errOut), errOut.String())
 	var doc engine.ResultDoc
 	require.NoError(t, json.Unmarshal(out.Bytes(), &doc))
 	values := map[string]string{}
@@ -32,7 +29,7 @@ func TestExplainCLIReAddsToEval(t *testing.T) {
 	for _, n := range doc.Nodes {
 		t.Run(n.ID, func(t *testing.T) {
 			out.Reset()
-			require.Equal(t, exitOK, run([]string{"explain", demoFile, "--node", n.ID, "--json"}, &out, &errOut), errOut.String())
+			require.Equal(t, exitOK, run([]string{"explain", demo, "--node", n.ID, "--json"}, &out, &errOut), errOut.String())
 			var e struct {
 				Value string `json:"value"`
 				Terms []struct {
@@ -64,7 +61,7 @@ func TestExplainCLIErrors(t *testing.T) {
 		code int
 		msg  string
 	}{
-		{"unknown node", []string{"explain", demoFile, "--node", "zz"}, exitInvalid, `no node with the id "zz"`},
+		{"unknown node", []string{"explain", demo, "--node", "zz"}, exitInvalid, `no node with the id "zz"`},
 		{"missing file", []string{"explain", "nowhere.json"}, exitInvalid, "nowhere.json"},
 		{"no file", []string{"explain"}, exitUsage, "expected one project FILE"},
 	}

@@ -164,7 +164,7 @@ func TestThousandNodeReportWithTree(t *testing.T) {
 	text, err := exec.Command("pdftotext", out, "-").CombinedOutput()
 	require.NoError(t, err)
 	for _, title := range []string{"Decision tree, part 1 of", "Strategies", "Outcomes (path table)", "Risk profile",
-		"Value of information", "Simulation summary", "Assumptions", "Caution"} {
+		"Tornado diagram", "Break-evens", "Value of information", "Simulation summary", "Assumptions", "Caution"} {
 		assert.Contains(t, string(text), title, "every section is in the 1,000-node report")
 	}
 }
