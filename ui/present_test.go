@@ -1,11 +1,13 @@
 package ui
 
 import (
+	"bytes"
 	"encoding/csv"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/container"
@@ -15,6 +17,7 @@ import (
 	"github.com/stretchr/testify/require"
 
 	"github.com/ramify-app/ramify/canvas"
+	"github.com/ramify-app/ramify/canvas/report"
 	"github.com/ramify-app/ramify/engine"
 )
 
@@ -193,4 +196,17 @@ func TestReportSnapshotIsACopy(t *testing.T) {
 	require.NoError(t, err)
 	assert.NotSame(t, h.p, p)
 	assert.True(t, r.Value().Equal(h.r.Value()))
+}
+
+// The report is written on its own goroutine from a snapshot; the file appears
+// and reads as a PDF.
+func TestReportInBackground(t *testing.T) {
+	h := newPresentHost(t)
+	path := filepath.Join(t.TempDir(), "report.pdf")
+	writeReportInBackground(h, path, report.Options{Tree: ReportTree})
+	require.Eventually(t, func() bool {
+		data, err := os.ReadFile(path)
+		return err == nil && bytes.HasPrefix(data, []byte("%PDF")) && bytes.Contains(data, []byte("%%EOF"))
+	}, 20*time.Second, 50*time.Millisecond)
+	assert.Empty(t, h.errs)
 }
