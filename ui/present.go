@@ -38,7 +38,9 @@ type presentation struct {
 	win     fyne.Window
 	view    *canvas.View
 	opts    canvas.Options
-	step    int // 0 … last: column steps, then the recommendation
+	lit     canvas.Theme // the presentation theme, recommended path highlighted
+	unlit   canvas.Theme // every branch drawn alike, until the last step
+	step    int          // 0 … last: column steps, then the recommendation
 	last    int
 	zoom    []*engine.Node // subtrees zoomed into, innermost last
 	caption *widget.Label
@@ -66,7 +68,9 @@ func startPresentation(h Host) *presentation {
 	ps := &presentation{h: h, win: win, content: win.Content(), menu: win.MainMenu(), full: win.FullScreen(),
 		onKey: win.Canvas().OnTypedKey()}
 	ps.last = presentDepth(p) + 1
-	ps.opts = canvas.Options{Theme: canvas.PresentationTheme(canvas.LightTheme()), RevealColumns: 0}
+	ps.lit = canvas.PresentationTheme(canvas.LightTheme())
+	ps.unlit = unlitTheme(ps.lit)
+	ps.opts = canvas.Options{Theme: ps.unlit, RevealColumns: 0}
 	ps.view = canvas.NewView()
 	ps.view.SetData(p, r)
 	ps.view.OnSelect = func(t canvas.Target) {
@@ -92,6 +96,24 @@ func startPresentation(h Host) *presentation {
 	return ps
 }
 
+// unlitTheme draws every branch, node and text of t alike, so the recommended
+// path does not show before the roll-back reaches the root.
+func unlitTheme(t canvas.Theme) canvas.Theme {
+	plain := t.Style(canvas.RoleBranch)
+	for _, role := range []canvas.Role{canvas.RoleBranchPolicy, canvas.RoleBranchRejected} {
+		t.SetStyle(role, plain)
+	}
+	node := canvas.Style{Stroke: plain.Stroke, Fill: t.Background, Width: plain.Width}
+	for _, role := range []canvas.Role{canvas.RoleDecisionNode, canvas.RoleChanceNode, canvas.RoleEndNode, canvas.RoleMutedNode} {
+		t.SetStyle(role, node)
+	}
+	text := t.Style(canvas.RoleLabel)
+	for _, role := range []canvas.Role{canvas.RoleProbability, canvas.RoleCash, canvas.RoleValue, canvas.RolePayoff, canvas.RoleMutedText} {
+		t.SetStyle(role, text)
+	}
+	return t
+}
+
 // presentDepth is the deepest column shown (collapsed subtrees are not drawn).
 func presentDepth(p *engine.Project) int {
 	deepest := 0
@@ -108,8 +130,10 @@ func (ps *presentation) apply() {
 	r := ps.h.Result()
 	ps.opts.RevealColumns = min(ps.step, ps.last-1)
 	ps.opts.NoteFunc = nil
+	ps.opts.Theme = ps.unlit
 	text := fmt.Sprintf("Step %d of %d: values rolled back over %d of %d columns", ps.step+1, ps.last+1, ps.step+1, ps.last)
 	if ps.step == ps.last {
+		ps.opts.Theme = ps.lit // the recommended path lights up
 		ps.opts.NoteFunc = func(n *engine.Node, branch int) []string {
 			if n.Kind == engine.Decision && r.OnPolicy(n) && r.Choice(n) == branch {
 				return []string{"recommended"}

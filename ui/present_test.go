@@ -85,9 +85,15 @@ func TestPresentationSteps(t *testing.T) {
 			assert.Contains(t, texts, root)
 		}
 		assert.NotContains(t, texts, "recommended")
+		th := o.Theme
+		assert.Equal(t, th.Style(canvas.RoleBranch), th.Style(canvas.RoleBranchPolicy), "the path is not lit before the last step")
+		assert.Equal(t, th.Style(canvas.RoleBranch), th.Style(canvas.RoleBranchRejected))
 		press(h.win, fyne.KeyRight)
 	}
 	assert.Contains(t, sceneTexts(h, ps.view.Options()), "recommended", "the last step marks the recommended choices")
+	lit := ps.view.Options().Theme
+	assert.NotEqual(t, lit.Style(canvas.RoleBranch), lit.Style(canvas.RoleBranchPolicy), "the recommended path lights up")
+	assert.Greater(t, lit.LabelSize, canvas.LightTheme().LabelSize, "presentation type is larger")
 	assert.Contains(t, ps.caption.Text, root)
 	press(h.win, fyne.KeyRight) // past the end: stays
 	assert.Equal(t, 4, ps.step)
