@@ -32,7 +32,7 @@ func ShowExplain(h Host, n *engine.Node) {
 		return
 	}
 	d := dialog.NewCustom("Explain value", "Close", explainContent(h, e), h.Window())
-	d.Resize(fyne.NewSize(720, 460))
+	d.Resize(fyne.NewSize(880, 480))
 	d.Show()
 }
 
