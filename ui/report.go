@@ -104,13 +104,15 @@ func ShowReportDialog(h Host) {
 		widget.NewFormItem("Page", page),
 		widget.NewFormItem("Look", theme),
 	}
-	dialog.ShowForm("Report", "Choose file…", "Cancel", items, func(ok bool) {
+	d := dialog.NewForm("Report", "Choose file…", "Cancel", items, func(ok bool) {
 		if !ok {
 			return
 		}
 		opts := report.Options{Page: page.Selected, Theme: theme.Selected, PreparedBy: strings.TrimSpace(by.Text), Tree: ReportTree}
 		chooseSavePath(h, suggestedName(p, ".pdf"), ".pdf", func(path string) { writeReportInBackground(h, path, opts) })
 	}, h.Window())
+	d.Resize(fyne.NewSize(440, d.MinSize().Height))
+	d.Show()
 }
 
 // chooseSavePath shows a save dialog and hands back a local path. The file the

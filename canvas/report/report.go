@@ -197,6 +197,11 @@ func (pg *pager) titlePage(s Section) {
 	pg.rule(pg.left(), pg.y, pg.textWidth(), pg.pal.rule)
 	pg.y += 14
 	for _, para := range s.Paragraphs {
+		if para == notesHeading {
+			pg.y += 6
+			pg.paragraph(pg.f.h2, pg.pal.accent, para, 0)
+			continue
+		}
 		pg.paragraph(pg.f.body, pg.pal.text, para, 0)
 	}
 	pg.table(s.Table)

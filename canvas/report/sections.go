@@ -27,6 +27,9 @@ func RootSentence(r *engine.Result) string {
 	return s
 }
 
+// notesHeading introduces the project notes on the title page, set as a subheading.
+const notesHeading = "Notes"
+
 func titlePage(in *Input) ([]Section, error) {
 	p, r, o := in.Project, in.Result, in.Options
 	var paras []string
@@ -42,7 +45,7 @@ func titlePage(in *Input) ([]Section, error) {
 		len(r.Nodes), len(r.Paths()), goal, defaultTo(p.Currency, "the project's units")))
 	paras = append(paras, RootSentence(r))
 	if strings.TrimSpace(p.Notes) != "" {
-		paras = append(paras, "Notes", strings.TrimSpace(p.Notes))
+		paras = append(paras, notesHeading, strings.TrimSpace(p.Notes))
 	}
 	return []Section{{Title: reportTitle(p), Paragraphs: paras}}, nil
 }
