@@ -200,3 +200,20 @@ func TestExplainBrokenNode(t *testing.T) {
 	_, err := Explain(r, p.Root)
 	assert.ErrorContains(t, err, `node "c"`)
 }
+
+// The issue's own example, worked by hand: 0.25 × (−12,000) + 0.75 × (−4,000) = −6,000.
+func TestExplainNegativeValues(t *testing.T) {
+	p := &Project{Objective: Maximize, Root: &Node{ID: "c", Kind: Chance, Branches: []*Branch{
+		{Label: "up", Probability: "0.25", To: &Node{ID: "u", Kind: End, Payoff: "-12000"}},
+		{Label: "down", Probability: "rest", To: &Node{ID: "d", Kind: End, Payoff: "-4000"}},
+	}}}
+	r := Evaluate(p)
+	require.True(t, r.Valid())
+	e, err := Explain(r, p.Root)
+	require.NoError(t, err)
+	assert.Equal(t, "  0.25 × (−12,000) + 0.75 × (−4,000) = −6,000", e.Lines[1])
+	require.Len(t, e.Terms, 2)
+	assert.Equal(t, "-3000", e.Terms[0].Amount)
+	assert.Equal(t, "-3000", e.Terms[1].Amount)
+	assert.Equal(t, "-6000", e.Value)
+}

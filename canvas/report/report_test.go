@@ -433,3 +433,30 @@ func TestBigReportReads(t *testing.T) {
 		assert.True(t, strings.Contains(flat, title), "%q is missing from the 1,000-node report", title)
 	}
 }
+
+// Odd but valid trees still give a complete report: a lone end, a chance root,
+// a project without variables or title.
+func TestReportOddTrees(t *testing.T) {
+	tests := []struct {
+		name string
+		p    *engine.Project
+	}{
+		{"lone end", &engine.Project{Objective: engine.Maximize, Root: &engine.Node{ID: "e", Kind: engine.End, Payoff: "5"}}},
+		{"chance root", &engine.Project{Objective: engine.Maximize, Currency: "$", Root: &engine.Node{ID: "c", Kind: engine.Chance,
+			Branches: []*engine.Branch{
+				{Label: "up", Probability: "0.25", To: &engine.Node{ID: "u", Kind: engine.End, Payoff: "-12000"}},
+				{Label: "down", Probability: "rest", To: &engine.Node{ID: "d", Kind: engine.End, Payoff: "-4000"}},
+			}}}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			r := engine.Evaluate(tc.p)
+			require.True(t, r.Valid(), "%v", r.Problems)
+			path := writeReport(t, tc.p, r, Options{})
+			flat := squash(poppler(t, "pdftotext", "-enc", "UTF-8", path, "-"))
+			assert.Contains(t, flat, "Decision report")
+			assert.Contains(t, flat, r.Format(r.Value()))
+			assert.Contains(t, flat, engine.Caution)
+		})
+	}
+}
