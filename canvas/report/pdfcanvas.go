@@ -326,11 +326,17 @@ func (c *cullCanvas) visible(minX, minY, maxX, maxY vg.Length) bool {
 }
 
 func (c *cullCanvas) pathVisible(p vg.Path) bool {
+	minX, minY, maxX, maxY, ok := pathBounds(p)
+	return ok && c.visible(minX, minY, maxX, maxY)
+}
+
+// pathBounds is a path's bounding box (arcs by their whole circle).
+func pathBounds(p vg.Path) (minX, minY, maxX, maxY vg.Length, ok bool) {
 	if len(p) == 0 {
-		return false
+		return 0, 0, 0, 0, false
 	}
 	inf := vg.Length(math.Inf(1))
-	minX, minY, maxX, maxY := inf, inf, -inf, -inf
+	minX, minY, maxX, maxY = inf, inf, -inf, -inf
 	grow := func(pt vg.Point, r vg.Length) {
 		minX, minY = min(minX, pt.X-r), min(minY, pt.Y-r)
 		maxX, maxY = max(maxX, pt.X+r), max(maxY, pt.Y+r)
@@ -347,7 +353,45 @@ func (c *cullCanvas) pathVisible(p vg.Path) bool {
 			}
 		}
 	}
-	return c.visible(minX, minY, maxX, maxY)
+	return minX, minY, maxX, maxY, minX <= maxX
+}
+
+// textBounds bounds a string drawn at pt: no glyph is wider than 1.2 em.
+func textBounds(f font.Face, pt vg.Point, s string) (minX, minY, maxX, maxY vg.Length) {
+	size := f.Font.Size
+	return pt.X, pt.Y - size, pt.X + size*1.2*vg.Length(utf8.RuneCountInString(s)), pt.Y + size
+}
+
+// probeCanvas draws nothing: it records the bounding box of everything drawn,
+// so the report can leave out tiles of a tiled tree that would be blank.
+// A drawer that transforms the canvas makes every tile count as used.
+type probeCanvas struct {
+	boxes     []vg.Rectangle
+	transform bool
+}
+
+func (c *probeCanvas) add(minX, minY, maxX, maxY vg.Length) {
+	c.boxes = append(c.boxes, vg.Rectangle{Min: vg.Point{X: minX, Y: minY}, Max: vg.Point{X: maxX, Y: maxY}})
+}
+func (c *probeCanvas) SetLineWidth(vg.Length)             {}
+func (c *probeCanvas) SetLineDash([]vg.Length, vg.Length) {}
+func (c *probeCanvas) SetColor(color.Color)               {}
+func (c *probeCanvas) Rotate(float64)                     { c.transform = true }
+func (c *probeCanvas) Translate(vg.Point)                 { c.transform = true }
+func (c *probeCanvas) Scale(float64, float64)             { c.transform = true }
+func (c *probeCanvas) Push()                              {}
+func (c *probeCanvas) Pop()                               {}
+func (c *probeCanvas) Stroke(p vg.Path)                   { c.Fill(p) }
+func (c *probeCanvas) DrawImage(r vg.Rectangle, _ image.Image) {
+	c.add(r.Min.X, r.Min.Y, r.Max.X, r.Max.Y)
+}
+func (c *probeCanvas) Fill(p vg.Path) {
+	if minX, minY, maxX, maxY, ok := pathBounds(p); ok {
+		c.add(minX, minY, maxX, maxY)
+	}
+}
+func (c *probeCanvas) FillString(f font.Face, pt vg.Point, s string) {
+	c.add(textBounds(f, pt, s))
 }
 
 func (c *cullCanvas) Stroke(p vg.Path) {
@@ -365,9 +409,7 @@ func (c *cullCanvas) Fill(p vg.Path) {
 }
 
 func (c *cullCanvas) FillString(f font.Face, pt vg.Point, s string) {
-	// A cheap, safe bound on the width: no glyph is wider than 1.2 em.
-	size := f.Font.Size
-	if c.visible(pt.X, pt.Y-size, pt.X+size*1.2*vg.Length(utf8.RuneCountInString(s)), pt.Y+size) {
+	if c.visible(textBounds(f, pt, s)) {
 		c.flush()
 		c.Canvas.FillString(f, pt, s)
 	}

@@ -276,36 +276,52 @@ func TestAnalysisSectionRegistration(t *testing.T) {
 	assert.Contains(t, flat, "Cumulative chance")
 }
 
-// fakeTree records where the report asks for the diagram.
+// fakeTree records where the report asks for the diagram, and draws boxes
+// given in its own coordinates (points from its top-left corner, y down).
 type fakeTree struct {
 	w, h  vg.Length
+	boxes []vg.Rectangle
 	calls []vg.Point
 	k     []float64
 }
 
 func (f *fakeTree) Size() (vg.Length, vg.Length) { return f.w, f.h }
 func (f *fakeTree) Draw(c vg.Canvas, topLeft vg.Point, k float64) error {
-	f.calls, f.k = append(f.calls, topLeft), append(f.k, k)
+	if _, probing := c.(*probeCanvas); !probing {
+		f.calls, f.k = append(f.calls, topLeft), append(f.k, k)
+	}
+	for _, b := range f.boxes {
+		kk := vg.Length(k)
+		c.Fill(rectPath(topLeft.X+b.Min.X*kk, topLeft.Y-b.Max.Y*kk, (b.Max.X-b.Min.X)*kk, (b.Max.Y-b.Min.Y)*kk))
+	}
 	return nil
 }
 
 // A small tree is fitted on one page; a big one is tiled at a readable scale,
-// one page per tile, every tile offset by whole tiles.
+// one page per tile that has something on it, every tile offset by whole tiles.
 func TestTreeDiagramFitOrTiled(t *testing.T) {
 	p, r := loadDemo(t)
+	tw, th := vg.Length(595.28-2*56), vg.Length(841.89-2*56-28-70)
+	box := func(x0, y0, x1, y1 vg.Length) vg.Rectangle {
+		return vg.Rectangle{Min: vg.Point{X: x0, Y: y0}, Max: vg.Point{X: x1, Y: y1}}
+	}
 	tests := []struct {
 		name        string
 		w, h        vg.Length
+		boxes       []vg.Rectangle
 		tiles       int
 		scaleAtMost float64
 	}{
-		{"fits at full size", 300, 200, 1, 1},
-		{"fits scaled down", 900, 600, 1, 0.6},
-		{"tiled", 3000, 2500, 0, tileScale},
+		{"fits at full size", 300, 200, nil, 1, 1},
+		{"fits scaled down", 900, 600, nil, 1, 0.6},
+		{"tiled, drawing everywhere", 3000, 2500, []vg.Rectangle{box(0, 0, 3000, 2500)}, 0, tileScale},
+		// Two small marks in opposite corners: only their two tiles are printed.
+		{"tiled, sparse", 3000, 2500, []vg.Rectangle{box(0, 0, 10, 10), box(2990, 2490, 3000, 2500)}, 2, tileScale},
+		{"tiled, drawing nothing", 3000, 2500, nil, 0, tileScale},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			f := &fakeTree{w: tc.w, h: tc.h}
+			f := &fakeTree{w: tc.w, h: tc.h, boxes: tc.boxes}
 			var theme string
 			opts := Options{Tree: func(pp *engine.Project, rr *engine.Result, th string) (TreeDiagram, error) {
 				assert.Same(t, p, pp)
@@ -319,11 +335,16 @@ func TestTreeDiagramFitOrTiled(t *testing.T) {
 			assert.NotContains(t, flat, "Decision tree (outline)")
 			want := tc.tiles
 			if want == 0 {
-				tw, th := vg.Length(595.28-2*56), vg.Length(841.89-2*56-28-70)
 				want = int(math.Ceil(float64(tc.w)*tileScale/float64(tw))) * int(math.Ceil(float64(tc.h)*tileScale/float64(th)))
+			}
+			if want > 1 {
 				assert.Contains(t, flat, fmt.Sprintf("part %d of %d", want, want))
 			}
 			require.Len(t, f.calls, want)
+			if tc.name == "tiled, sparse" {
+				assert.Contains(t, flat, "part 1 of 2 (row 1, column 1)")
+				assert.Contains(t, flat, "part 2 of 2 (row 3, column 5)")
+			}
 			for _, k := range f.k {
 				assert.LessOrEqual(t, k, tc.scaleAtMost+1e-9)
 			}

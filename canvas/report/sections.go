@@ -95,25 +95,50 @@ func treeSection(in *Input) ([]Section, error) {
 	tileW, tileH := in.page.textW, in.page.textH-70
 	cols := int(math.Ceil(float64(w) * tileScale / float64(tileW)))
 	rows := int(math.Ceil(float64(h) * tileScale / float64(tileH)))
-	var out []Section
+	// Tiles the drawing does not touch are left out (a sparse tree would
+	// otherwise print many blank pages); the rest keep their row and column.
+	used := func(row, col int) bool { return true }
+	probe := &probeCanvas{}
+	if err := d.Draw(probe, vg.Point{}, tileScale); err == nil && !probe.transform && len(probe.boxes) > 0 {
+		hit := map[[2]int]bool{}
+		for _, b := range probe.boxes {
+			c0, c1 := int(math.Floor(float64(b.Min.X/tileW))), int(math.Floor(float64(b.Max.X/tileW)))
+			r0, r1 := int(math.Floor(float64(-b.Max.Y/tileH))), int(math.Floor(float64(-b.Min.Y/tileH)))
+			for r := max(r0, 0); r <= min(r1, rows-1); r++ {
+				for c := max(c0, 0); c <= min(c1, cols-1); c++ {
+					hit[[2]int{r, c}] = true
+				}
+			}
+		}
+		used = func(row, col int) bool { return hit[[2]int{row, col}] }
+	}
+	type tile struct{ row, col int }
+	var tiles []tile
 	for row := 0; row < rows; row++ {
 		for col := 0; col < cols; col++ {
-			row, col := row, col
-			s := Section{Title: fmt.Sprintf("Decision tree, part %d of %d (row %d, column %d)", row*cols+col+1, rows*cols, row+1, col+1),
-				NewPage: true, Behind: true, FigureHeight: tileH,
-				Figure: func(c vg.Canvas, rect vg.Rectangle) error {
-					top := vg.Point{X: rect.Min.X - vg.Length(col)*tileW, Y: rect.Max.Y + vg.Length(row)*tileH}
-					if err := d.Draw(newCullCanvas(c, rect), top, tileScale); err != nil {
-						return err
-					}
-					maskOutside(c, rect)
-					return nil
-				}}
-			if row == 0 && col == 0 {
-				s.Paragraphs = []string{intro + fmt.Sprintf(" The tree is printed in %d parts, %d across and %d down; read across, then down.", rows*cols, cols, rows)}
+			if used(row, col) {
+				tiles = append(tiles, tile{row, col})
 			}
-			out = append(out, s)
 		}
+	}
+	var out []Section
+	for k, tl := range tiles {
+		row, col := tl.row, tl.col
+		s := Section{Title: fmt.Sprintf("Decision tree, part %d of %d (row %d, column %d)", k+1, len(tiles), row+1, col+1),
+			NewPage: true, Behind: true, FigureHeight: tileH,
+			Figure: func(c vg.Canvas, rect vg.Rectangle) error {
+				top := vg.Point{X: rect.Min.X - vg.Length(col)*tileW, Y: rect.Max.Y + vg.Length(row)*tileH}
+				if err := d.Draw(newCullCanvas(c, rect), top, tileScale); err != nil {
+					return err
+				}
+				maskOutside(c, rect)
+				return nil
+			}}
+		if k == 0 {
+			s.Paragraphs = []string{intro + fmt.Sprintf(" The tree is printed in %d parts on a grid %d across and %d down (blank parts left out); "+
+				"each part names its row and column.", len(tiles), cols, rows)}
+		}
+		out = append(out, s)
 	}
 	return out, nil
 }
