@@ -16,7 +16,7 @@ import (
 
 // ExportOptions control a file export of the tree.
 type ExportOptions struct {
-	Theme     string    // light (default), dark or print
+	Theme     string    // light (default), dark or print; files are on white paper except with dark
 	Page      string    // PDF page: A4 (default), A3, Letter, Legal
 	Landscape bool      // PDF page turned sideways
 	Tile      bool      // PDF: full size across several pages instead of fitting one page
@@ -187,7 +187,8 @@ func headerPrims(th *Theme, r Rect, title, date, page string) []Prim {
 	return b.s.Prims
 }
 
-// withHeader puts the title block above the drawing and widens the viewport to hold it.
+// withHeader puts the title block above the drawing and the caution under it,
+// and widens the viewport to hold both.
 func withHeader(s *Scene, eo ExportOptions, p *engine.Project) *Scene {
 	th := &s.Theme
 	h := headerHeight(th)
@@ -198,6 +199,34 @@ func withHeader(s *Scene, eo ExportOptions, p *engine.Project) *Scene {
 	}
 	hr := Rect{vp.X, vp.Y - h - 6, w, h}
 	s.Prims = append(headerPrims(th, hr, eo.title(p), eo.dateText(), ""), s.Prims...)
-	s.Viewport = Rect{vp.X, hr.Y, w, vp.H + h + 6}
+	foot := footerPrims(th, vp.X, vp.Y+vp.H+8, w)
+	s.Prims = append(s.Prims, foot...)
+	s.Viewport = Rect{vp.X, hr.Y, w, vp.H + h + 6 + 8 + footerHeight(th, w)}
 	return s
+}
+
+// cautionLines is engine.Caution on one line, or on two when w is too narrow.
+func cautionLines(th *Theme, w float64) []string {
+	c := engine.Caution
+	if FontMeasurer.TextWidth(FontMeasurer{}, c, th.NoteSize, false) <= w {
+		return []string{c}
+	}
+	if a, b, ok := strings.Cut(c, "; "); ok {
+		return []string{a + ";", b}
+	}
+	return []string{c}
+}
+
+func footerHeight(th *Theme, w float64) float64 {
+	return float64(len(cautionLines(th, w))) * th.lineHeight(th.NoteSize)
+}
+
+// footerPrims is the caution every exported drawing carries, at the bottom left.
+func footerPrims(th *Theme, x, top, w float64) []Prim {
+	b := sceneBuilder{s: &Scene{}, th: th}
+	for _, line := range cautionLines(th, w) {
+		b.text(RoleNote, TextRun{Text: line, Width: FontMeasurer{}.TextWidth(line, th.NoteSize, false)}, x, top, th.NoteSize, false, AlignLeft)
+		top += th.lineHeight(th.NoteSize)
+	}
+	return b.s.Prims
 }

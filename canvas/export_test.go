@@ -105,6 +105,7 @@ func TestExportSVG(t *testing.T) {
 			})
 			assert.Contains(t, all, p.Title)
 			assert.Contains(t, all, "14 March 2026")
+			assert.Contains(t, all, "A decision aid only")
 		})
 	}
 }
@@ -154,6 +155,7 @@ func TestExportPDF(t *testing.T) {
 			})
 			assert.Contains(t, text, "page 1 of 1")
 			assert.Contains(t, text, p.Title)
+			assert.Contains(t, text, "A decision aid only")
 		}
 	})
 
@@ -167,7 +169,7 @@ func TestExportPDF(t *testing.T) {
 		// title block, stepping by the area less the overlap
 		w, h, _ := PageSize("A4", false)
 		th := LightTheme()
-		areaW, areaH := w-2*pageMargin, h-2*pageMargin-headerHeight(&th)
+		areaW, areaH := w-2*pageMargin, h-2*pageMargin-headerHeight(&th)-footerHeight(&th, w-2*pageMargin)-6
 		cols := math.Ceil((l.Bounds.W - tileOverlap) / (areaW - tileOverlap))
 		rows := math.Ceil((l.Bounds.H - tileOverlap) / (areaH - tileOverlap))
 		want := int(cols * rows)
@@ -298,4 +300,30 @@ func drawTreePage(w io.Writer, p *engine.Project, r *engine.Result) error {
 	}
 	_, err := c.WriteTo(w)
 	return err
+}
+
+func TestExportAnyTextAnyDepth(t *testing.T) {
+	weird := []string{"\x00\x01\x02bad\xff\xfe", "\u202eevil override", "line\nbreak\ttab", "\U0001F600 🚢 東京 ﷺ", "\uFFFE\uFFFF", "<svg onload=x>&amp;", "]]> <!-- -->", strings.Repeat("Ω", 500), ""}
+	root := &engine.Node{ID: "root", Kind: engine.Chance, Name: weird[0]}
+	for i, w := range weird {
+		root.Branches = append(root.Branches, &engine.Branch{Label: w, Probability: "1/9", Cash: w, To: &engine.Node{ID: "e" + strconv.Itoa(i), Kind: engine.End, Payoff: w}})
+	}
+	p := &engine.Project{Title: weird[1] + weird[3], Currency: "€", Root: root}
+	r := engine.Evaluate(p) // full of problems: every one of them is drawn
+	dir := t.TempDir()
+	for _, ext := range Formats {
+		path := filepath.Join(dir, "weird"+ext)
+		require.NotPanics(t, func() { require.NoError(t, Export(p, r, path, ExportOptions{DPI: 72})) }, ext)
+		if ext == ".svg" {
+			data, err := os.ReadFile(path)
+			require.NoError(t, err)
+			svgTexts(t, data)
+		}
+	}
+	deep := chain(2500)
+	require.NoError(t, Export(deep, engine.Evaluate(deep), filepath.Join(dir, "deep.svg"), ExportOptions{}))
+	require.NoError(t, Export(deep, engine.Evaluate(deep), filepath.Join(dir, "deep.pdf"), ExportOptions{}))
+	err := Export(deep, nil, filepath.Join(dir, "deep-tiles.pdf"), ExportOptions{Tile: true})
+	require.Error(t, err, "thousands of pages are refused")
+	assert.Contains(t, err.Error(), "pages")
 }

@@ -18,8 +18,9 @@ type Layout struct {
 	Bounds  Rect
 	Theme   Theme
 
-	kids  []int32 // children of box i are kids[Boxes[i].kid0 : kid0+nkids]
-	index map[*engine.Node]int
+	kids    []int32 // children of box i are kids[Boxes[i].kid0 : kid0+nkids]
+	index   map[*engine.Node]int
+	lookups int
 }
 
 // Column is the horizontal plan of one depth.
@@ -100,6 +101,16 @@ func (l *Layout) Kids(i int) []int32 {
 
 // Index returns the box index of node n, or -1 when n is not shown.
 func (l *Layout) Index(n *engine.Node) int {
+	if l.index == nil && l.lookups < 8 {
+		// A few lookups (the selection after an edit) scan; many build a map.
+		l.lookups++
+		for i := range l.Boxes {
+			if l.Boxes[i].Node == n {
+				return i
+			}
+		}
+		return -1
+	}
 	if l.index == nil {
 		l.index = make(map[*engine.Node]int, len(l.Boxes))
 		for i := range l.Boxes {
@@ -134,7 +145,10 @@ func (l *Layout) SubtreeBounds(i int) Rect {
 
 // Layouter lays trees out and remembers, per node, the formatted numbers and
 // measured texts of the last layout, so the re-layout after an edit formats
-// and measures only what changed. It is not safe for concurrent use.
+// and measures only what changed. A Layout it returns is meant to be drawn
+// before the next call: the next call updates the texts it shares, and the
+// call after that reuses its arrays. Use LayoutTree for a layout to keep.
+// A Layouter is not safe for concurrent use.
 type Layouter struct {
 	measure *measureCache
 	entries map[*engine.Node]*nodeEntry
@@ -147,6 +161,12 @@ type Layouter struct {
 	// node visited is the same as last time and needs no map lookup.
 	order []*nodeEntry
 	nodes []*engine.Node
+	// Two sets of box and child arrays used in turn, so a steady stream of
+	// re-layouts allocates nothing: the layout returned by one call stays
+	// intact through the next call and is reused by the one after.
+	boxBuf [2][]NodeBox
+	kidBuf [2][]int32
+	turn   int
 }
 
 // layoutKey is everything besides the node itself that its texts depend on.
@@ -176,12 +196,16 @@ func (c *cachedNumber) get(d decimal.Decimal, format func(decimal.Decimal) strin
 // nodeEntry is what a Layouter remembers about one node.
 type nodeEntry struct {
 	NodeTexts
-	labelSrc, probSrc, cashSrc, payoffSrc string // formula texts when not evaluated
+	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed
+	valueSrc                              string
 	prob, cash, value, payoff             cachedNumber
 	notesSrc, problemsSrc                 []string
 	hiddenSrc                             int
 	seen                                  uint32
 }
+
+// numberSource marks a text that shows an evaluated number, not a source text.
+const numberSource = "\x00number"
 
 type walkItem struct {
 	n      *engine.Node
@@ -247,15 +271,32 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	numT := mc.table(th.NumberSize, false)
 	valT := mc.table(th.ValueSize, true)
 
+	type fieldKey struct {
+		node   string
+		branch int
+		field  string
+	}
 	var problems map[string][]string
+	var badField map[fieldKey]bool
 	if r != nil && len(r.Problems) > 0 {
 		problems = map[string][]string{}
+		badField = map[fieldKey]bool{}
 		for _, pr := range r.Problems {
 			if pr.NodeID != "" {
 				problems[pr.NodeID] = append(problems[pr.NodeID], pr.Msg)
+				badField[fieldKey{pr.NodeID, pr.Branch, pr.Field}] = true
 			}
 		}
 	}
+	// raw is the text shown for a field that could not be evaluated: what the
+	// user typed, or a question mark when it is empty.
+	raw := func(s string) string {
+		if strings.TrimSpace(s) == "" {
+			return "?"
+		}
+		return s
+	}
+	const noValue = "—" // a value that could not be computed
 	format := func(d decimal.Decimal) string { return engine.FormatValue(d, p.Decimals, p.Currency) }
 	formatP := engine.FormatProbability
 	fit := func(s string, size float64, max float64) TextRun {
@@ -268,9 +309,10 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		return tr
 	}
 	// number updates a measured number text when its string changed.
-	number := func(tr *TextRun, t map[string]float64, s string, size float64, bold bool) {
-		if tr.Text != s || s == "" {
+	number := func(tr *TextRun, src *string, t map[string]float64, s string, size float64, bold bool) {
+		if tr.Text != s || s == "" || *src != numberSource {
 			*tr = TextRun{Text: s, Width: mc.width(t, s, size, bold)}
+			*src = numberSource
 		}
 	}
 	// source updates a text fitted from a formula or label when its source changed.
@@ -293,7 +335,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
-	l.Boxes = make([]NodeBox, 0, max(lo.last, 16))
+	lo.turn ^= 1
+	l.Boxes = lo.boxBuf[lo.turn][:0]
+	if cap(l.Boxes) < lo.last {
+		l.Boxes = make([]NodeBox, 0, lo.last+lo.last/8+16)
+	}
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
@@ -325,20 +371,32 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			switch {
 			case parent.Kind != engine.Chance:
 				e.Prob, e.probSrc = TextRun{}, ""
+			case r != nil && badField[fieldKey{parent.ID, bi, "probability"}]:
+				source(&e.Prob, &e.probSrc, raw(br.Probability), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
-				number(&e.Prob, numT, e.prob.get(r.Probability(parent, bi), formatP), th.NumberSize, false)
+				number(&e.Prob, &e.probSrc, numT, e.prob.get(r.Probability(parent, bi), formatP), th.NumberSize, false)
 			default:
 				source(&e.Prob, &e.probSrc, br.Probability, th.NumberSize, th.MaxLabelWidth/2)
 			}
 			switch {
 			case strings.TrimSpace(br.Cash) == "":
 				e.Cash, e.cashSrc = TextRun{}, ""
+			case r != nil && badField[fieldKey{parent.ID, bi, "cash"}]:
+				source(&e.Cash, &e.cashSrc, raw(br.Cash), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
-				number(&e.Cash, numT, e.cash.get(r.Cash(parent, bi), format), th.NumberSize, false)
+				number(&e.Cash, &e.cashSrc, numT, e.cash.get(r.Cash(parent, bi), format), th.NumberSize, false)
 			default:
 				source(&e.Cash, &e.cashSrc, br.Cash, th.NumberSize, th.MaxLabelWidth/2)
 			}
 			notes = opts.notesFor(parent, bi, n)
+			if r != nil && parent.Kind == engine.Decision {
+				for _, t := range r.Ties(parent) {
+					if t == bi {
+						notes = append(notes, "ties with the recommended choice")
+						break
+					}
+				}
+			}
 		} else {
 			e.Label, e.Prob, e.Cash = TextRun{}, TextRun{}, TextRun{}
 		}
@@ -353,9 +411,14 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		switch {
 		case n.Kind == engine.End && !collapsed:
 			e.Value = TextRun{}
-			if r != nil {
-				number(&e.Payoff, valT, e.payoff.get(r.PathValue(n), format), th.ValueSize, true)
-			} else {
+			switch {
+			case r != nil && badField[fieldKey{n.ID, -1, "payoff"}]:
+				source(&e.Payoff, &e.payoffSrc, raw(n.Payoff), th.ValueSize, th.MaxLabelWidth/2)
+			case r != nil && r.Broken(n):
+				number(&e.Payoff, &e.payoffSrc, valT, noValue, th.ValueSize, true)
+			case r != nil:
+				number(&e.Payoff, &e.payoffSrc, valT, e.payoff.get(r.PathValue(n), format), th.ValueSize, true)
+			default:
 				source(&e.Payoff, &e.payoffSrc, n.Payoff, th.ValueSize, th.MaxLabelWidth/2)
 			}
 		case r != nil:
@@ -366,11 +429,31 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 					v = ce
 				}
 			}
-			number(&e.Value, valT, e.value.get(v, format), th.ValueSize, true)
+			if r.Broken(n) {
+				number(&e.Value, &e.valueSrc, valT, noValue, th.ValueSize, true)
+			} else {
+				number(&e.Value, &e.valueSrc, valT, e.value.get(v, format), th.ValueSize, true)
+			}
 		default:
 			e.Payoff, e.Value = TextRun{}, TextRun{}
 		}
-		if msgs := problems[n.ID]; !sameStrings(msgs, e.problemsSrc) {
+		msgs := problems[n.ID]
+		hidden := 0
+		if collapsed {
+			hidden = -1
+			inside := 0
+			engine.Walk(n, func(m *engine.Node, _ int) bool {
+				hidden++
+				if m != n {
+					inside += len(problems[m.ID])
+				}
+				return true
+			})
+			if inside > 0 {
+				msgs = append(msgs[:len(msgs):len(msgs)], itoa(inside)+" problem(s) in the folded part")
+			}
+		}
+		if !sameStrings(msgs, e.problemsSrc) {
 			e.problemsSrc = msgs
 			e.Problems = nil
 			for _, m := range msgs {
@@ -379,8 +462,6 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		}
 		self := int32(len(l.Boxes))
 		if collapsed {
-			hidden := -1
-			engine.Walk(n, func(*engine.Node, int) bool { hidden++; return true })
 			b.Hidden = hidden
 			if hidden != e.hiddenSrc || e.HiddenNote.Text == "" {
 				e.hiddenSrc = hidden
@@ -405,7 +486,13 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 
 	// Children lists: preorder makes a parent precede its children, and
 	// children of one parent appear in branch order.
-	l.kids = make([]int32, len(l.Boxes))
+	lo.boxBuf[lo.turn] = l.Boxes
+	l.kids = lo.kidBuf[lo.turn][:0]
+	if cap(l.kids) < len(l.Boxes) {
+		l.kids = make([]int32, 0, len(l.Boxes)+len(l.Boxes)/8+16)
+	}
+	l.kids = l.kids[:len(l.Boxes)]
+	lo.kidBuf[lo.turn] = l.kids
 	counts := lo.scratch.int32s(&lo.scratch.counts, len(l.Boxes))
 	for i := 1; i < len(l.Boxes); i++ {
 		counts[l.Boxes[i].Parent]++
@@ -487,6 +574,9 @@ func (lo *Layouter) columns(l *Layout) {
 		}
 		if !b.Value.empty() {
 			top = math.Max(top, th.TextPad+lhVal)
+		}
+		if len(b.Problems) > 0 { // the mark sits above the node
+			top = math.Max(top, math.Max(th.NodeSize, th.EndHeight)/2+2*problemMarkSize(th)+2)
 		}
 		if !b.Payoff.empty() {
 			top = math.Max(top, lhVal/2)

@@ -7,6 +7,9 @@ import (
 	"unicode/utf8"
 
 	stdfont "golang.org/x/image/font"
+	"golang.org/x/image/font/opentype"
+	"golang.org/x/image/font/sfnt"
+	"golang.org/x/image/math/fixed"
 	"gonum.org/v1/plot/font"
 	"gonum.org/v1/plot/font/liberation"
 	"gonum.org/v1/plot/vg"
@@ -40,15 +43,81 @@ func fileFace(size float64, bold bool) font.Face {
 }
 
 // FontMeasurer measures with the Liberation Sans metrics used by the SVG, PDF
-// and PNG renderers. The zero value is ready to use and safe for one goroutine.
+// and PNG renderers. It sums glyph advances and kerning in font units exactly
+// as gonum/plot's font.Face.Width does (unhinted), but remembers each rune's
+// glyph and each pair's kerning, which makes the first layout of a large tree
+// several times faster. The zero value is ready and safe for concurrent use.
 type FontMeasurer struct{}
 
 func (FontMeasurer) TextWidth(text string, size float64, bold bool) float64 {
 	if text == "" || size <= 0 {
 		return 0
 	}
-	face := fileFace(size, bold)
-	return float64(face.Width(text).Points())
+	m := &metrics[0]
+	if bold {
+		m = &metrics[1]
+	}
+	return m.width(text, size, bold)
+}
+
+var metrics [2]fontMetrics
+
+type glyph struct {
+	idx sfnt.GlyphIndex
+	adv fixed.Int26_6
+}
+
+type fontMetrics struct {
+	mu   sync.Mutex
+	font *opentype.Font
+	upem fixed.Int26_6
+	buf  sfnt.Buffer
+	gl   map[rune]glyph
+	kern map[[2]sfnt.GlyphIndex]fixed.Int26_6
+}
+
+func (m *fontMetrics) width(s string, size float64, bold bool) float64 {
+	m.mu.Lock()
+	defer m.mu.Unlock()
+	if m.font == nil {
+		m.font = fileFace(size, bold).Face
+		m.upem = fixed.Int26_6(m.font.UnitsPerEm())
+		m.gl = map[rune]glyph{}
+		m.kern = map[[2]sfnt.GlyphIndex]fixed.Int26_6{}
+	}
+	var total fixed.Int26_6
+	var prev sfnt.GlyphIndex
+	hasPrev := false
+	for _, r := range s {
+		g, ok := m.gl[r]
+		if !ok {
+			idx, err := m.font.GlyphIndex(&m.buf, r)
+			if err == nil {
+				g.idx = idx
+				g.adv, err = m.font.GlyphAdvance(&m.buf, idx, m.upem, stdfont.HintingNone)
+			}
+			if err != nil {
+				g = glyph{} // a rune the font cannot map takes no room
+			}
+			m.gl[r] = g
+		}
+		if hasPrev {
+			pair := [2]sfnt.GlyphIndex{prev, g.idx}
+			k, ok := m.kern[pair]
+			if !ok {
+				var err error
+				k, err = m.font.Kern(&m.buf, prev, g.idx, m.upem, stdfont.HintingNone)
+				if err != nil {
+					k = 0
+				}
+				m.kern[pair] = k
+			}
+			total += k
+		}
+		total += g.adv
+		prev, hasPrev = g.idx, true
+	}
+	return float64(total) * size / float64(m.upem)
 }
 
 // measureCache remembers widths by string so re-layout after an edit measures

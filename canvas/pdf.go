@@ -38,6 +38,7 @@ func PageSize(name string, landscape bool) (w, h float64, ok bool) {
 }
 
 const (
+	maxPDFPages = 200
 	pageMargin  = 36 // half an inch
 	tileOverlap = 24 // repeated on neighbouring tiles so cut branches can be matched
 )
@@ -51,9 +52,9 @@ type pdfPlan struct {
 	rows, cols   int
 }
 
-func planPDF(bounds Rect, pageW, pageH, header float64, tile bool) pdfPlan {
+func planPDF(bounds Rect, pageW, pageH, header, footer float64, tile bool) pdfPlan {
 	p := pdfPlan{pageW: pageW, pageH: pageH}
-	p.area = Rect{pageMargin, pageMargin + header, pageW - 2*pageMargin, pageH - 2*pageMargin - header}
+	p.area = Rect{pageMargin, pageMargin + header, pageW - 2*pageMargin, pageH - 2*pageMargin - header - footer}
 	fit := math.Min(p.area.W/bounds.W, p.area.H/bounds.H)
 	if !tile || fit >= 1 {
 		p.k = math.Min(1, fit)
@@ -80,7 +81,11 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 	}
 	th := l.Theme
 	header := headerHeight(&th)
-	plan := planPDF(l.Bounds, pw, ph, header, eo.Tile)
+	footer := footerHeight(&th, pw-2*pageMargin) + 6
+	plan := planPDF(l.Bounds, pw, ph, header, footer, eo.Tile)
+	if len(plan.tiles) > maxPDFPages {
+		return fmt.Errorf("the tree would need %d pages (%d × %d); fit it on one page or choose a larger page", len(plan.tiles), plan.rows, plan.cols)
+	}
 	c := vgpdf.New(vg.Length(pw), vg.Length(ph))
 	c.EmbedFonts(true)
 	pageRect := vg.Rectangle{Max: vg.Point{X: vg.Length(pw), Y: vg.Length(ph)}}
@@ -104,6 +109,7 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 			label += fmt.Sprintf(" · row %d, column %d", i/plan.cols+1, i%plan.cols+1)
 		}
 		hs := &Scene{Theme: th, Prims: headerPrims(&th, Rect{pageMargin, pageMargin, pw - 2*pageMargin, header}, eo.title(p), eo.dateText(), label)}
+		hs.Prims = append(hs.Prims, footerPrims(&th, pageMargin, ph-pageMargin-footer+6, pw-2*pageMargin)...)
 		drawVG(c, hs, vgMap{left: 0, top: ph, k: 1}, true)
 	}
 	_, err := c.WriteTo(w)

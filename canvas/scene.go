@@ -203,6 +203,9 @@ func Build(p *engine.Project, r *engine.Result, l *Layout, opts Options, viewpor
 	return s
 }
 
+// problemMarkSize is the half-diagonal of the diamond marking a problem.
+func problemMarkSize(th *Theme) float64 { return th.NodeSize * 0.42 }
+
 type sceneBuilder struct {
 	s    *Scene
 	th   *Theme
@@ -244,9 +247,12 @@ func (b *sceneBuilder) node(i int, showValue, boxVisible bool) {
 		half = th.EndWidth / 2
 	}
 
-	onPolicy := r == nil || r.OnPolicy(n)
+	// Without a recommended policy (the tree could not be evaluated) nothing
+	// is de-emphasised.
+	policyKnown := r != nil && !r.Broken(l.Boxes[0].Node)
+	onPolicy := !policyKnown || r.OnPolicy(n)
 	branchRole := RoleBranch
-	if r != nil {
+	if policyKnown {
 		branchRole = RoleBranchRejected
 		if onPolicy {
 			branchRole = RoleBranchPolicy
@@ -316,8 +322,8 @@ func (b *sceneBuilder) node(i int, showValue, boxVisible bool) {
 
 	// Problem mark: a diamond with an exclamation mark at the node's upper left.
 	if len(box.Problems) > 0 {
-		k := th.NodeSize * 0.42
-		cx, cy := x-half-k*0.6, y-th.NodeSize/2-k*0.2
+		k := problemMarkSize(th)
+		cx, cy := x, y-math.Max(th.NodeSize, th.EndHeight)/2-k-1
 		b.s.Prims = append(b.s.Prims, Prim{Kind: PrimPolygon, Role: RoleProblemMark, Points: []Point{{cx, cy - k}, {cx + k, cy}, {cx, cy + k}, {cx - k, cy}}})
 		bang := TextRun{Text: "!", Width: 0}
 		b.s.Prims = append(b.s.Prims, Prim{Kind: PrimText, Role: RoleProblem, Text: bang.Text, At: Point{cx, cy + k*0.45}, Size: k * 1.3, Bold: true, Align: AlignCenter})

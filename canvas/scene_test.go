@@ -197,6 +197,26 @@ func TestProblemsAreMarked(t *testing.T) {
 	h, ok := s.HitFor(Target{bad, -1, FieldNode})
 	require.True(t, ok)
 	assert.Contains(t, h.Tip, r.ProblemsAt(bad)[0].Msg)
+
+	// the bad field shows what was typed, and the value that could not be
+	// computed shows a dash rather than a misleading zero
+	l := LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
+	assert.Equal(t, "1.7 +", l.Boxes[l.Index(bad.Branches[0].To)].Prob.Text)
+	require.True(t, r.Broken(bad))
+	assert.Equal(t, "—", l.Boxes[l.Index(bad)].Value.Text)
+
+	// and a layouter that saw the good tree switches texts both ways
+	lo := NewLayouter(FontMeasurer{})
+	bad.Branches[0].Probability = "0.5"
+	good := engine.Evaluate(p)
+	lo.Layout(p, good, DefaultOptions())
+	bad.Branches[0].Probability = "1.7 +"
+	l = lo.Layout(p, engine.Evaluate(p), DefaultOptions())
+	assert.Equal(t, "1.7 +", l.Boxes[l.Index(bad.Branches[0].To)].Prob.Text)
+	bad.Branches[0].Probability = "0.5"
+	good = engine.Evaluate(p)
+	l = lo.Layout(p, good, DefaultOptions())
+	assert.Equal(t, engine.FormatProbability(good.Probability(bad, 0)), l.Boxes[l.Index(bad.Branches[0].To)].Prob.Text)
 }
 
 func TestSceneCullsToViewport(t *testing.T) {
@@ -242,4 +262,31 @@ func TestCleanText(t *testing.T) {
 	assert.True(t, ct.cut)
 	assert.LessOrEqual(t, ct.width, 120.0)
 	assert.True(t, strings.HasSuffix(ct.text, ellipsis))
+}
+
+func TestTiesAndFoldedProblemsAreNoted(t *testing.T) {
+	p, _ := smallTree(t)
+	p.Root.Branches[1].To.Payoff = "50" // Skip now equals Try's 50
+	r := engine.Evaluate(p)
+	require.NotEmpty(t, r.Ties(p.Root))
+	l := LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
+	tied := p.Root.Branches[r.Ties(p.Root)[0]].To
+	notes := l.Boxes[l.Index(tied)].Notes
+	require.Len(t, notes, 1)
+	assert.Contains(t, notes[0].Text, "ties")
+
+	chance := p.Root.Branches[0].To
+	chance.Branches[0].To.Payoff = "oops(" // a problem at a node that will be hidden
+	chance.Collapsed = true
+	r = engine.Evaluate(p)
+	require.False(t, r.Valid())
+	l = LayoutTree(p, r, FontMeasurer{}, DefaultOptions())
+	box := l.Boxes[l.Index(chance)]
+	require.Empty(t, r.ProblemsAt(chance))
+	require.NotEmpty(t, box.Problems, "problems below a folded node show on its stub")
+	assert.Contains(t, box.Problems[0].Text, "1 problem(s) in the folded part")
+	s := Build(p, r, l, DefaultOptions(), Rect{})
+	h, ok := s.HitFor(Target{chance, -1, FieldNode})
+	require.True(t, ok)
+	assert.NotEmpty(t, h.Tip)
 }

@@ -104,3 +104,18 @@ func TestLayouterUpdatesChangedTexts(t *testing.T) {
 	assert.Equal(t, "Try harder", l.Boxes[l.Index(p.Root.Branches[0].To)].Label.Text)
 	assert.Equal(t, r.Format(r.PathValue(p.Root.Branches[1].To)), l.Boxes[l.Index(p.Root.Branches[1].To)].Payoff.Text)
 }
+
+// The cached measurer must agree with gonum/plot's own font.Face.Width, which
+// is what the PDF and PNG back-ends lay text out with.
+func TestFontMeasurerMatchesGonum(t *testing.T) {
+	texts := []string{"Rent a temporary chiller", "−1,234,567.89 EUR", "AVAWAY To Ty", "Zürich – €5", "東京 🚢", "0.35", "", "ﬁ ligature"}
+	for _, s := range texts {
+		for _, bold := range []bool{false, true} {
+			for _, size := range []float64{7.5, 10, 15} {
+				face := fileFace(size, bold)
+				want := float64(face.Width(s).Points())
+				assert.InDelta(t, want, FontMeasurer{}.TextWidth(s, size, bold), 1e-9, "%q bold=%v size=%v", s, bold, size)
+			}
+		}
+	}
+}

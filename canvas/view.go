@@ -1,9 +1,14 @@
 package canvas
 
 import (
+	"fmt"
+	"image"
 	"image/color"
 	"math"
 	"strings"
+
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/vgimg"
 
 	"fyne.io/fyne/v2"
 	fynecanvas "fyne.io/fyne/v2/canvas"
@@ -35,13 +40,14 @@ type View struct {
 
 	zoom      float64       // screen units per logical unit
 	offset    fyne.Position // screen position of the logical origin
-	needFit   bool // fit the whole tree at the next draw
-	autoFit   bool // keep fitting on resize until the user zooms or pans
+	needFit   bool          // fit the whole tree at the next draw
+	autoFit   bool          // keep fitting on resize until the user zooms or pans
 	focused   bool
 	tip       string
 	tipAt     fyne.Position
 	lastSize  fyne.Size
 	pendingIn *engine.Node // FocusNode called before the widget had a size
+	rend      *viewRenderer
 }
 
 const (
@@ -301,14 +307,23 @@ func (v *View) MouseMoved(ev *desktop.MouseEvent) {
 	_, tip := v.TargetAt(ev.Position)
 	if tip != v.tip || (tip != "" && ev.Position != v.tipAt) {
 		v.tip, v.tipAt = tip, ev.Position
-		v.Refresh()
+		v.refreshTip()
 	}
 }
 
 func (v *View) MouseOut() {
 	if v.tip != "" {
 		v.tip = ""
-		v.Refresh()
+		v.refreshTip()
+	}
+}
+
+// refreshTip moves the tooltip without rebuilding the drawing.
+func (v *View) refreshTip() {
+	if r := v.rend; r != nil {
+		r.tooltip(v.Size())
+		fynecanvas.Refresh(r.tipBG)
+		fynecanvas.Refresh(r.tipText)
 	}
 }
 
@@ -354,6 +369,7 @@ func (v *View) CreateRenderer() fyne.WidgetRenderer {
 	r.tipText = fynecanvas.NewText("", color.White)
 	r.tipBG.Hide()
 	r.tipText.Hide()
+	v.rend = r
 	return r
 }
 
@@ -364,8 +380,17 @@ func (fyneMeasurer) TextWidth(s string, size float64, bold bool) float64 {
 	return float64(fyne.MeasureText(s, float32(size), fyne.TextStyle{Bold: bold}).Width)
 }
 
+// maxViewObjects is how many primitives the view turns into canvas objects;
+// beyond it (a large tree seen from afar) the visible part is drawn into one
+// image instead, through the same vg drawing code as the PNG export.
+const maxViewObjects = 3000
+
 // viewRenderer turns the scene of the visible part into canvas objects.
 type viewRenderer struct {
+	over     *fynecanvas.Image
+	overKey  overviewKey
+	overRect Rect // the part of the drawing the image holds
+
 	v       *View
 	bg      *fynecanvas.Rectangle
 	objects []fyne.CanvasObject
@@ -422,12 +447,79 @@ func (r *viewRenderer) rebuild() {
 	}
 	v.scene = s
 	r.drawn = r.drawn[:0]
-	for i := range s.Prims {
-		r.prim(&s.Prims[i])
+	if len(s.Prims) > maxViewObjects {
+		r.overview(s, vp)
+	} else {
+		for i := range s.Prims {
+			r.prim(&s.Prims[i])
+		}
 	}
 	r.objects = append(append(r.objects[:0], r.bg), r.drawn...)
 	r.tooltip(size)
 	r.objects = append(r.objects, r.tipBG, r.tipText)
+}
+
+type overviewKey struct {
+	layout *Layout
+	zoom   float64
+	theme  string
+	opts   string
+}
+
+// overview shows the visible part as one image. The image covers the viewport
+// and half a viewport around it, and is only redrawn when the view leaves that
+// area, zooms, or the tree or options change; panning just moves it.
+func (r *viewRenderer) overview(s *Scene, vp Rect) {
+	v := r.v
+	key := overviewKey{layout: v.layout, zoom: v.zoom, theme: v.opts.Theme.Name, opts: optionsKey(v.opts)}
+	inside := vp.X >= r.overRect.X && vp.Y >= r.overRect.Y && vp.X+vp.W <= r.overRect.X+r.overRect.W && vp.Y+vp.H <= r.overRect.Y+r.overRect.H
+	if r.over == nil || key != r.overKey || !inside {
+		area := Rect{vp.X - vp.W/2, vp.Y - vp.H/2, vp.W * 2, vp.H * 2}
+		img, err := rasterScene(Build(v.project, v.result, v.layout, v.opts, area), area, v.zoom)
+		if err != nil {
+			return
+		}
+		if r.over == nil {
+			r.over = fynecanvas.NewImageFromImage(img)
+			r.over.FillMode = fynecanvas.ImageFillStretch
+			r.over.ScaleMode = fynecanvas.ImageScaleFastest
+		} else {
+			r.over.Image = img
+			r.over.Refresh()
+		}
+		r.overKey, r.overRect = key, area
+	}
+	r.over.Move(v.toScreen(Point{r.overRect.X, r.overRect.Y}))
+	r.over.Resize(fyne.NewSize(float32(r.overRect.W*v.zoom), float32(r.overRect.H*v.zoom)))
+	r.drawn = append(r.drawn, r.over)
+}
+
+// optionsKey sums up the options that change the drawing.
+func optionsKey(o Options) string {
+	sel := ""
+	if !o.Selected.IsZero() {
+		sel = o.Selected.Node.ID + "/" + itoa(o.Selected.Branch) + "/" + o.Selected.Field
+	}
+	return fmt.Sprint(o.ShowCertaintyEquivalent, o.HideWorkingNumbers, o.RevealColumns, len(o.Notes), o.NoteFunc != nil, sel)
+}
+
+// rasterScene draws area of the scene at zoom into an image, leaving out text
+// too small to read.
+func rasterScene(s *Scene, area Rect, zoom float64) (image.Image, error) {
+	w, h := int(math.Ceil(area.W*zoom)), int(math.Ceil(area.H*zoom))
+	if w <= 0 || h <= 0 || w*h > 40_000_000 {
+		return nil, fmt.Errorf("overview image %d × %d is out of range", w, h)
+	}
+	keep := s.Prims[:0:0]
+	for _, p := range s.Prims {
+		if p.Kind != PrimText || p.Size*zoom >= 3.5 {
+			keep = append(keep, p)
+		}
+	}
+	s.Prims = keep
+	c := vgimg.NewWith(vgimg.UseWH(vg.Length(w), vg.Length(h)), vgimg.UseDPI(72), vgimg.UseBackgroundColor(s.Theme.Background))
+	drawVG(c, s, vgMap{vx: area.X, vy: area.Y, left: 0, top: float64(h), k: zoom}, false)
+	return c.Image(), nil
 }
 
 func (r *viewRenderer) tooltip(size fyne.Size) {

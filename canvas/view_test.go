@@ -2,6 +2,7 @@ package canvas
 
 import (
 	"image"
+	"image/color"
 	"image/png"
 	"os"
 	"path/filepath"
@@ -235,4 +236,56 @@ func TestViewSetDataOnEveryEdit(t *testing.T) {
 	v.SetData(p, engine.Evaluate(p))
 	assert.True(t, v.Selected().IsZero())
 	v.SetData(nil, nil)
+}
+
+func TestViewTooltipShowsFullText(t *testing.T) {
+	p, r := smallTree(t)
+	long := "Try the pilot in the northern depot first, then decide about the others"
+	p.Root.Branches[0].Label = long
+	r = engine.Evaluate(p)
+	v, _ := newTestView(t, p, r, fyne.NewSize(900, 300))
+	h, ok := v.scene.HitFor(Target{p.Root, 0, FieldLabel})
+	require.True(t, ok)
+	if h.Tip == "" {
+		t.Skip("label fits at this theme's width; nothing to show")
+	}
+	assert.Equal(t, long, h.Tip)
+	at := v.toScreen(Point{h.Rect.X + h.Rect.W/2, h.Rect.Y + h.Rect.H/2})
+	v.MouseMoved(&desktop.MouseEvent{PointEvent: fyne.PointEvent{Position: at}})
+	rend := test.WidgetRenderer(v).(*viewRenderer)
+	assert.True(t, rend.tipText.Visible())
+	assert.Equal(t, long, rend.tipText.Text)
+	v.MouseOut()
+	assert.False(t, rend.tipText.Visible())
+}
+
+func TestViewOverviewOfLargeTree(t *testing.T) {
+	p := bigTree(10000)
+	r := engine.Evaluate(p)
+	v, w := newTestView(t, p, r, fyne.NewSize(800, 600))
+	v.ZoomFit()
+	rend := test.WidgetRenderer(v).(*viewRenderer)
+	require.NotNil(t, rend.over, "a whole 10,000-node tree is drawn as one image")
+	assert.Less(t, len(rend.Objects()), 10)
+	img := rend.over.Image
+	require.NotNil(t, img)
+	bg := v.opts.Theme.Background
+	inked := 0
+	b := img.Bounds()
+	for y := b.Min.Y; y < b.Max.Y; y += 3 {
+		for x := b.Min.X; x < b.Max.X; x += 3 {
+			c := color.NRGBAModel.Convert(img.At(x, y)).(color.NRGBA)
+			if c != bg {
+				inked++
+			}
+		}
+	}
+	assert.Positive(t, inked, "the overview image shows the tree")
+	// a small pan moves the image instead of drawing it again
+	test.Drag(w.Canvas(), fyne.NewPos(400, 300), 10, 10)
+	assert.Same(t, img, rend.over.Image)
+	// taps still find nodes
+	h := v.scene.Hits[0]
+	got, _ := v.TargetAt(v.toScreen(Point{h.Rect.X + h.Rect.W/2, h.Rect.Y + h.Rect.H/2}))
+	assert.Equal(t, h.Target, got)
 }

@@ -66,3 +66,8 @@ func RegisterMenu(e MenuEntry) {
 	menuEntries = append(menuEntries, e)
 	sort.SliceStable(menuEntries, func(i, j int) bool { return menuEntries[i].Order < menuEntries[j].Order })
 }
+
+// runInBackground starts long work off the event goroutine; panels take it as
+// their default runner. Tests swap in an inline runner, because Fyne's test
+// driver runs fyne.Do on the calling goroutine rather than on one event loop.
+var runInBackground = func(f func()) { go f() }

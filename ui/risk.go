@@ -79,7 +79,7 @@ type riskPanel struct {
 }
 
 func newRiskPanel(h Host) *riskPanel {
-	rp := &riskPanel{host: h, nodeIDs: map[string]string{}, background: func(f func()) { go f() }}
+	rp := &riskPanel{host: h, nodeIDs: map[string]string{}, background: runInBackground}
 	rp.nodeSelect = widget.NewSelect(nil, func(string) { rp.refresh() })
 	rp.chartKind = widget.NewRadioGroup([]string{chartBars, chartCumulative}, func(string) { rp.refresh() })
 	rp.chartKind.Horizontal = true

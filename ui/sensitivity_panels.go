@@ -40,7 +40,7 @@ type sweepPanel struct {
 }
 
 func newSweepPanel(h Host) *sweepPanel {
-	sp := &sweepPanel{h: h, chart: newChartBox(), table: newTextTable(), background: func(f func()) { go f() }}
+	sp := &sweepPanel{h: h, chart: newChartBox(), table: newTextTable(), background: runInBackground}
 	sp.input = widget.NewSelect(nil, nil)
 	sp.input.PlaceHolder = "Input to vary"
 	sp.from, sp.to = widget.NewEntry(), widget.NewEntry()
@@ -205,7 +205,7 @@ type tornadoPanel struct {
 }
 
 func newTornadoPanel(h Host) *tornadoPanel {
-	tp := &tornadoPanel{h: h, chart: newChartBox(), table: newTextTable(), background: func(f func()) { go f() }}
+	tp := &tornadoPanel{h: h, chart: newChartBox(), table: newTextTable(), background: runInBackground}
 	tp.run = widget.NewButton("Run", tp.Run)
 	tp.status = widget.NewLabel("Every variable with a low and a high gets a bar. Press Run.")
 	tp.status.Wrapping = fyne.TextWrapWord
@@ -316,7 +316,7 @@ type regionsPanel struct {
 }
 
 func newRegionsPanel(h Host) *regionsPanel {
-	rp := &regionsPanel{h: h, chart: newChartBox(), table: newTextTable(), background: func(f func()) { go f() }}
+	rp := &regionsPanel{h: h, chart: newChartBox(), table: newTextTable(), background: runInBackground}
 	rp.x, rp.y = widget.NewSelect(nil, nil), widget.NewSelect(nil, nil)
 	rp.x.PlaceHolder, rp.y.PlaceHolder = "Across", "Up"
 	rp.xFrom, rp.xTo, rp.yFrom, rp.yTo = widget.NewEntry(), widget.NewEntry(), widget.NewEntry(), widget.NewEntry()

@@ -66,7 +66,7 @@ type simPanel struct {
 }
 
 func newSimPanel(h Host) *simPanel {
-	sp := &simPanel{host: h, background: func(f func()) { go f() }}
+	sp := &simPanel{host: h, background: runInBackground}
 	sp.mode = widget.NewRadioGroup([]string{simModeParams, simModeFull}, nil)
 	sp.mode.SetSelected(simModeParams)
 	sp.iters = widget.NewEntry()

@@ -34,7 +34,7 @@ type voiPanel struct {
 }
 
 func newVOIPanel(h Host) *voiPanel {
-	vp := &voiPanel{host: h, background: func(f func()) { go f() }}
+	vp := &voiPanel{host: h, background: runInBackground}
 	vp.anyBranch = widget.NewCheck("Count an uncertainty found on only some alternatives as happening whatever is chosen", func(bool) { vp.refresh() })
 	vp.compute = widget.NewButton("Compute", vp.refresh)
 	vp.status = widget.NewLabel("")
