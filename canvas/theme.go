@@ -1,6 +1,18 @@
 // Package canvas lays out a decision tree, turns it into one scene of simple
 // primitives, and draws that scene on screen (Fyne), and to SVG, PDF and PNG.
 // It reads engine.Project and engine.Result and never computes a value itself.
+//
+// The flow is Layouter.Layout (layout.go: tidy tree, measured text) → Build
+// (scene.go: primitives and hit regions for a viewport) → a renderer: View
+// (view.go, the Fyne widget), WriteSVG (svg.go), and the vg drawing shared by
+// PDF and PNG (vgdraw.go, pdf.go, png.go). Export (export.go) writes a file;
+// DrawTree puts the tree into any gonum/plot vg.Canvas, e.g. a report page.
+//
+// For the editor: NewView, SetData after every edit, OnSelect / OnActivate
+// receive a Target (node, branch, field) for taps, Select and FocusNode move
+// the view, SetOptions switches theme and presentation settings. Start from
+// DefaultOptions: a zero Options has RevealColumns 0, which shows the values
+// of the deepest column only (the first presentation step).
 package canvas
 
 import (
