@@ -327,10 +327,23 @@ func (v *View) refreshTip() {
 	}
 }
 
-func (v *View) FocusGained()            { v.focused = true }
-func (v *View) FocusLost()              { v.focused = false }
-func (v *View) TypedRune(r rune)        {}
-func (v *View) TypedKey(*fyne.KeyEvent) {}
+func (v *View) FocusGained()     { v.focused = true }
+func (v *View) FocusLost()       { v.focused = false }
+func (v *View) TypedRune(r rune) {}
+
+// TypedKey pans with the arrow keys.
+func (v *View) TypedKey(ev *fyne.KeyEvent) {
+	const step = 48
+	d := map[fyne.KeyName]fyne.Position{
+		fyne.KeyLeft: {X: step}, fyne.KeyRight: {X: -step}, fyne.KeyUp: {Y: step}, fyne.KeyDown: {Y: -step},
+	}[ev.Name]
+	if d.IsZero() {
+		return
+	}
+	v.offset = v.offset.Add(d)
+	v.needFit, v.autoFit = false, false
+	v.Refresh()
+}
 
 // TypedShortcut handles Ctrl/Cmd + plus (or =), minus and 0.
 func (v *View) TypedShortcut(s fyne.Shortcut) {

@@ -289,3 +289,16 @@ func TestViewOverviewOfLargeTree(t *testing.T) {
 	got, _ := v.TargetAt(v.toScreen(Point{h.Rect.X + h.Rect.W/2, h.Rect.Y + h.Rect.H/2}))
 	assert.Equal(t, h.Target, got)
 }
+
+func TestViewArrowKeysPan(t *testing.T) {
+	p, r := smallTree(t)
+	v, _ := newTestView(t, p, r, fyne.NewSize(400, 200))
+	before := v.ViewportRect()
+	v.TypedKey(&fyne.KeyEvent{Name: fyne.KeyRight})
+	v.TypedKey(&fyne.KeyEvent{Name: fyne.KeyDown})
+	after := v.ViewportRect()
+	assert.Greater(t, after.X, before.X, "right arrow shows more to the right")
+	assert.Greater(t, after.Y, before.Y)
+	v.TypedKey(&fyne.KeyEvent{Name: fyne.KeyA})
+	assert.Equal(t, after, v.ViewportRect())
+}
