@@ -64,7 +64,8 @@ func NewView() *View {
 	return v
 }
 
-// SetData shows a project and its evaluation (r may be nil). It is cheap
+// SetData shows a project and its evaluation, r = engine.Evaluate(p) (r may
+// be nil; a result of another project is ignored). It is cheap
 // enough to call after every edit: texts that did not change are not measured
 // again. The selection is kept while its node is still in the tree.
 func (v *View) SetData(p *engine.Project, r *engine.Result) {
