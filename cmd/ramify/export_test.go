@@ -8,6 +8,8 @@ import (
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
+
+	"github.com/ramify-app/ramify/engine"
 )
 
 func TestExportCommand(t *testing.T) {
@@ -54,4 +56,24 @@ func TestExportCommand(t *testing.T) {
 	}
 	_, err := os.Stat(filepath.Join(dir, "x.svg"))
 	assert.True(t, os.IsNotExist(err), "failed exports leave no file")
+}
+
+func TestExportCommandDrawsProblems(t *testing.T) {
+	data, err := os.ReadFile(filepath.Join("..", "..", "assets", "demos", "chiller-cover.ramify.json"))
+	require.NoError(t, err)
+	p, err := engine.Parse(data, "demo")
+	require.NoError(t, err)
+	p.Root.Branches[0].Label = "Rent <with a broken cash>"
+	p.Root.Branches[0].Cash = "rent_week * ("
+	dir := t.TempDir()
+	in := filepath.Join(dir, "with-problem.ramify.json")
+	require.NoError(t, engine.Save(in, p))
+	out := filepath.Join(dir, "tree.svg")
+	var stdout, stderr bytes.Buffer
+	code := run([]string{"export", in, "-o", out}, &stdout, &stderr)
+	assert.Equal(t, exitOK, code, "a tree with problems still draws")
+	assert.Contains(t, stderr.String(), "problem(s); they are marked on the drawing")
+	svg, err := os.ReadFile(out)
+	require.NoError(t, err)
+	assert.Contains(t, string(svg), "rent_week * (", "the bad formula is shown as typed")
 }
