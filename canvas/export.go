@@ -143,6 +143,9 @@ func writeAtomically(path string, write func(io.Writer) error) (err error) {
 	if err = bw.Flush(); err != nil {
 		return fmt.Errorf("export %s: %w", path, unwrapPathErr(err))
 	}
+	if err = f.Sync(); err != nil {
+		return fmt.Errorf("export %s: %w", path, unwrapPathErr(err))
+	}
 	if err = f.Close(); err != nil {
 		return fmt.Errorf("export %s: %w", path, unwrapPathErr(err))
 	}
