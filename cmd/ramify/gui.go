@@ -10,8 +10,3 @@ func openWindow(args []string, stderr io.Writer) int {
 	fmt.Fprintln(stderr, "ramify: the editor window is not built yet; use a subcommand")
 	return exitUsage
 }
-
-func printVersion(stdout io.Writer) int {
-	fmt.Fprintln(stdout, "ramify (development)")
-	return exitOK
-}
