@@ -64,15 +64,21 @@ func NewApp() fyne.App {
 	return a
 }
 
-// Metadata is the running application's identity: the Fyne app's metadata
-// when an app with an ID runs, else FyneApp.toml's as embedded in the binary.
+// Metadata is Ramify's identity from FyneApp.toml, as given to app.SetMetadata
+// at start-up; it needs no running app, so --version can print it.
 func Metadata() (fyne.AppMetadata, error) {
+	return appMeta, appMetaErr
+}
+
+// runningMetadata is the running app's metadata, which a binary built by the
+// Fyne tool may carry from its own generated init; else Metadata.
+func runningMetadata() (fyne.AppMetadata, error) {
 	if a := fyne.CurrentApp(); a != nil {
 		if m := a.Metadata(); m.ID != "" && m.Version != "" {
 			return m, nil
 		}
 	}
-	return appMeta, appMetaErr
+	return Metadata()
 }
 
 // VersionLine prints a version the way --version and the About dialog show it.
@@ -95,7 +101,7 @@ func ShowAbout(w fyne.Window) {
 // aboutContent builds the dialog's two tabs: what Ramify is, and the licences
 // of the libraries it ships.
 func aboutContent() (*container.AppTabs, error) {
-	m, err := Metadata()
+	m, err := runningMetadata()
 	if err != nil {
 		return nil, err
 	}

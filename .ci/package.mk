@@ -1,0 +1,47 @@
+# Packaging targets, included by the top-level Makefile (`include .ci/package.mk`);
+# also usable alone: make -f .ci/package.mk package
+#
+#   make package        dist/Ramify.tar.xz: binary, icon and desktop entry (Linux)
+#   make package-test   the archive test; skipped with a message without the Fyne tool
+#
+# The version and build number come from FyneApp.toml only.
+
+FYNE_TOOLS_VERSION ?= v1.7.4
+GOBIN_DIR ?= $(or $(shell go env GOBIN),$(shell go env GOPATH)/bin)
+FYNE ?= $(GOBIN_DIR)/fyne
+DIST ?= dist
+DIST_DIR = $(abspath $(DIST))
+PACKAGE_ARCHIVE = $(DIST_DIR)/Ramify.tar.xz
+
+.PHONY: package fyne-tool package-test
+
+# Installs the pinned Fyne packaging tool unless that version is already there.
+fyne-tool:
+	@if ! "$(FYNE)" version 2>/dev/null | grep -q 'cli version: $(FYNE_TOOLS_VERSION)$$'; then \
+		echo "installing fyne.io/tools/cmd/fyne@$(FYNE_TOOLS_VERSION) into $(GOBIN_DIR)"; \
+		GOBIN="$(GOBIN_DIR)" go install fyne.io/tools/cmd/fyne@$(FYNE_TOOLS_VERSION); \
+	fi
+
+# The binary is built here (release mode, symbols stripped) and handed to
+# `fyne package`, which reads FyneApp.toml at the top level for the name, ID,
+# icon and desktop entry. `fyne package` also adds one to the build number in
+# FyneApp.toml after every run; we keep the file as committed and raise the
+# build number by hand for a release.
+package: fyne-tool
+	@mkdir -p "$(DIST_DIR)"
+	@rm -f "$(PACKAGE_ARCHIVE)"
+	CGO_ENABLED=1 go build -tags release -trimpath -ldflags "-s -w" -o "$(DIST_DIR)/ramify" ./cmd/ramify
+	@cp FyneApp.toml "$(DIST_DIR)/FyneApp.toml.committed"
+	cd "$(DIST_DIR)" && "$(FYNE)" package --os linux --release \
+		--source-dir "$(CURDIR)" --executable "$(DIST_DIR)/ramify"; \
+	status=$$?; \
+	cp "$(DIST_DIR)/FyneApp.toml.committed" "$(CURDIR)/FyneApp.toml"; \
+	rm -f "$(DIST_DIR)/FyneApp.toml.committed" "$(DIST_DIR)/ramify"; \
+	exit $$status
+	@echo "built $(PACKAGE_ARCHIVE):"
+	@tar -tf "$(PACKAGE_ARCHIVE)"
+
+# Runs `make package` and lists the archive; skipped (with a message) when the
+# Fyne tool is not installed. Kept behind a build tag so `go test ./...` never builds it.
+package-test:
+	go test -tags packaging -run '^TestPackageArchive$$' -count=1 -timeout 30m -v ./cmd/ramify
