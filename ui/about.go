@@ -2,7 +2,6 @@ package ui
 
 import (
 	"fmt"
-	"image/color"
 	"strings"
 
 	"fyne.io/fyne/v2"
@@ -10,6 +9,7 @@ import (
 	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/container"
 	"fyne.io/fyne/v2/dialog"
+	"fyne.io/fyne/v2/layout"
 	"fyne.io/fyne/v2/theme"
 	"fyne.io/fyne/v2/widget"
 
@@ -145,17 +145,15 @@ func licencesView() fyne.CanvasObject {
 		func() fyne.CanvasObject {
 			name := widget.NewLabel("module")
 			name.Truncation = fyne.TextTruncateEllipsis
-			lic := canvas.NewText("licence", color.Gray{Y: 128})
-			lic.TextSize = theme.CaptionTextSize()
-			return container.NewVBox(name, lic)
+			lic := widget.NewLabel("licence")
+			lic.SizeName = theme.SizeNameCaptionText
+			lic.Importance = widget.LowImportance
+			return container.New(layout.NewCustomPaddedVBoxLayout(-2*theme.Padding()), name, lic)
 		},
 		func(i widget.ListItemID, o fyne.CanvasObject) {
 			box := o.(*fyne.Container)
 			box.Objects[0].(*widget.Label).SetText(shippedModules[i].Title())
-			lic := box.Objects[1].(*canvas.Text)
-			lic.Text = shippedModules[i].Licence
-			lic.Color = theme.Color(theme.ColorNamePlaceHolder)
-			lic.Refresh()
+			box.Objects[1].(*widget.Label).SetText(shippedModules[i].Licence)
 		},
 	)
 	scroll := container.NewScroll(text)
