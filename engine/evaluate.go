@@ -5,11 +5,16 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync/atomic"
 
 	"github.com/shopspring/decimal"
 )
 
 var one = decimal.NewFromInt(1)
+
+// evaluationStamp marks the nodes one evaluation has visited, so finding a node
+// reached twice needs no map.
+var evaluationStamp atomic.Uint64
 
 // Evaluate validates the project and rolls the tree back exactly. It never fails:
 // every problem is listed in Result.Problems with its place, and the parts of the
@@ -28,7 +33,6 @@ func Evaluate(p *Project) *Result {
 	r.rollBack()
 	r.evaluateRisk()
 	r.markPolicy()
-	r.forward()
 	return r
 }
 
@@ -101,6 +105,10 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 		for len(stack) > 0 {
 			top := &stack[len(stack)-1]
 			f := formulas[top.name]
+			if f == nil { // dropped as part of a cycle
+				stack = stack[:len(stack)-1]
+				continue
+			}
 			if top.next < len(f.names) {
 				dep := f.names[top.next]
 				top.next++
@@ -151,24 +159,28 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 // index lists the nodes in preorder and sizes the result slices. A node that
 // appears twice (the tree is not a tree) is reported and not descended again.
 func (r *Result) index() {
-	seen := map[*Node]bool{}
-	ids := map[string]bool{}
-	Walk(r.Project.Root, func(n *Node, _ int) bool {
-		if seen[n] {
+	stamp := evaluationStamp.Add(1)
+	r.Nodes = make([]*Node, 0, r.Project.sizeHint)
+	stack := []*Node{r.Project.Root}
+	for len(stack) > 0 {
+		n := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		if n.stamp == stamp {
 			r.nodeProblem(n, -1, "", "this node appears in two places; a tree node has one parent")
-			return false
+			continue
 		}
-		seen[n] = true
-		if ids[n.ID] {
-			r.nodeProblem(n, -1, "id", "the id is used by another node")
-		}
-		ids[n.ID] = true
+		n.stamp = stamp
 		n.index = len(r.Nodes)
 		r.Nodes = append(r.Nodes, n)
-		return true
-	})
-	// A node appearing twice breaks the walk's assumption; cut the second visit off.
+		for i := len(n.Branches) - 1; i >= 0; i-- {
+			if c := n.Branches[i].To; c != nil {
+				stack = append(stack, c)
+			}
+		}
+	}
+	r.checkIDs()
 	count := len(r.Nodes)
+	r.Project.sizeHint = count
 	r.value = make([]decimal.Decimal, count)
 	r.choice = make([]int, count)
 	r.ties = make([][]int, count)
@@ -180,13 +192,52 @@ func (r *Result) index() {
 	r.parent = make([]int32, count)
 	r.parentBranch = make([]int32, count)
 	r.parent[0] = -1
+	slots := 0
+	for _, n := range r.Nodes {
+		slots += len(n.Branches)
+	}
+	probs, cashes := make([]decimal.Decimal, slots), make([]decimal.Decimal, slots)
 	for i, n := range r.Nodes {
 		r.choice[i] = -1
+		k := len(n.Branches)
+		r.prob[i], r.cash[i] = probs[:k:k], cashes[:k:k]
+		probs, cashes = probs[k:], cashes[k:]
 		for bi, b := range n.Branches {
 			if c := b.To; c != nil && c.index < count && r.Nodes[c.index] == c && c.index > i {
 				r.parent[c.index], r.parentBranch[c.index] = int32(i), int32(bi)
 			}
 		}
+	}
+}
+
+// checkIDs reports ids used twice. The project keeps the id → node map of its
+// last evaluation; when every node still sits under its own id (the usual case
+// after an edit) look-ups suffice and the map is not rebuilt.
+func (r *Result) checkIDs() {
+	p := r.Project
+	if len(p.idCache) == len(r.Nodes) {
+		same := true
+		for _, n := range r.Nodes {
+			if p.idCache[n.ID] != n {
+				same = false
+				break
+			}
+		}
+		if same {
+			return
+		}
+	}
+	ids := make(map[string]*Node, len(r.Nodes))
+	for _, n := range r.Nodes {
+		if _, dup := ids[n.ID]; dup {
+			r.nodeProblem(n, -1, "id", "the id is used by another node")
+			continue
+		}
+		ids[n.ID] = n
+	}
+	p.idCache = nil
+	if len(ids) == len(r.Nodes) {
+		p.idCache = ids
 	}
 }
 
@@ -232,8 +283,6 @@ func (r *Result) evaluateFields() {
 			r.broken[i] = true
 			continue
 		}
-		r.cash[i] = make([]decimal.Decimal, len(n.Branches))
-		r.prob[i] = make([]decimal.Decimal, len(n.Branches))
 		for bi, b := range n.Branches {
 			if b.To == nil {
 				r.nodeProblem(n, bi, "", "the branch leads nowhere")
@@ -261,6 +310,60 @@ func (r *Result) evaluateFields() {
 // evaluateProbabilities checks a chance node's distribution: each in [0, 1],
 // at most one "rest", and a total of exactly 1.
 func (r *Result) evaluateProbabilities(n *Node) bool {
+	if r.reuseProbabilities(n) {
+		return true
+	}
+	ok := r.checkProbabilities(n)
+	r.rememberProbabilities(n, ok)
+	return ok
+}
+
+// reuseProbabilities skips the exact checks when a node's probabilities are all
+// constants whose compiled formulas are unchanged since a previous valid check.
+func (r *Result) reuseProbabilities(n *Node) bool {
+	c := &n.probCheck
+	if !c.valid || len(c.formulas) != len(n.Branches) {
+		return false
+	}
+	for bi, b := range n.Branches {
+		if strings.TrimSpace(b.Probability) == RestProbability {
+			if c.formulas[bi] != nil {
+				return false
+			}
+			continue
+		}
+		f, err := b.probF.get(b.Probability)
+		if err != nil || f != c.formulas[bi] || !f.constant {
+			return false
+		}
+	}
+	copy(r.prob[n.index], c.probs)
+	return true
+}
+
+func (r *Result) rememberProbabilities(n *Node, ok bool) {
+	c := &n.probCheck
+	c.valid = false
+	if !ok {
+		return
+	}
+	c.formulas = c.formulas[:0]
+	for _, b := range n.Branches {
+		if strings.TrimSpace(b.Probability) == RestProbability {
+			c.formulas = append(c.formulas, nil)
+			continue
+		}
+		f, _ := b.probF.get(b.Probability)
+		if !f.constant {
+			return
+		}
+		c.formulas = append(c.formulas, f)
+	}
+	c.probs = append(c.probs[:0], r.prob[n.index]...)
+	c.valid = true
+}
+
+func (r *Result) checkProbabilities(n *Node) bool {
 	i := n.index
 	ok := true
 	rest := -1
@@ -315,10 +418,12 @@ func (r *Result) evaluateProbabilities(n *Node) bool {
 // every child before its parent, so no recursion is needed at any depth.
 func (r *Result) rollBack() {
 	maximize := r.Project.Objective != Minimize
+	fast := make([]small, len(r.Nodes)) // the int64 form of each value, when it fits
 	for i := len(r.Nodes) - 1; i >= 0; i-- {
 		n := r.Nodes[i]
 		if n.Kind == End {
 			r.value[i] = r.payoff[i]
+			fast[i] = smallOf(r.payoff[i])
 			continue
 		}
 		for _, b := range n.Branches {
@@ -331,6 +436,10 @@ func (r *Result) rollBack() {
 		}
 		switch n.Kind {
 		case Chance:
+			if acc, ok := r.chanceFast(i, n, fast); ok {
+				fast[i], r.value[i] = acc, acc.dec()
+				continue
+			}
 			sum := decimal.Zero
 			for bi, b := range n.Branches {
 				p := r.prob[i][bi]
@@ -343,11 +452,15 @@ func (r *Result) rollBack() {
 				}
 				sum = sum.Add(v)
 			}
-			r.value[i] = sum
+			r.value[i], fast[i] = sum, smallOf(sum)
 		case Decision:
-			best := -1
+			best, ties, bestS, ok := r.decideFast(i, n, fast, maximize)
+			if ok {
+				r.choice[i], r.ties[i], fast[i], r.value[i] = best, ties, bestS, bestS.dec()
+				continue
+			}
 			var bestV decimal.Decimal
-			var ties []int
+			best, ties = -1, nil
 			for bi, b := range n.Branches {
 				v := r.branchValue(i, bi, b)
 				switch {
@@ -359,9 +472,56 @@ func (r *Result) rollBack() {
 					best, bestV, ties = bi, v, nil
 				}
 			}
-			r.choice[i], r.value[i], r.ties[i] = best, bestV, ties
+			r.choice[i], r.value[i], r.ties[i], fast[i] = best, bestV, ties, smallOf(bestV)
 		}
 	}
+}
+
+// decideFast picks the best branch in int64 arithmetic; ok is false when any
+// value does not fit, and the caller then uses decimal.Decimal.
+func (r *Result) decideFast(i int, n *Node, fast []small, maximize bool) (int, []int, small, bool) {
+	best := -1
+	var bestS small
+	var ties []int
+	for bi, b := range n.Branches {
+		vs := fast[b.To.index].add(smallOf(r.cash[i][bi]))
+		if !vs.ok {
+			return 0, nil, small{}, false
+		}
+		if best < 0 {
+			best, bestS = bi, vs
+			continue
+		}
+		c, ok := vs.cmp(bestS)
+		if !ok {
+			return 0, nil, small{}, false
+		}
+		switch {
+		case c == 0:
+			ties = append(ties, bi)
+		case (maximize && c > 0) || (!maximize && c < 0):
+			best, bestS, ties = bi, vs, nil
+		}
+	}
+	return best, ties, bestS, true
+}
+
+// chanceFast is the chance-node sum in int64 arithmetic; ok is false when any
+// step would not fit, and the caller then uses decimal.Decimal.
+func (r *Result) chanceFast(i int, n *Node, fast []small) (small, bool) {
+	acc := small{ok: true}
+	for bi, b := range n.Branches {
+		p := r.prob[i][bi]
+		if p.IsZero() {
+			continue
+		}
+		v := fast[b.To.index].add(smallOf(r.cash[i][bi]))
+		acc = acc.add(smallOf(p).mul(v))
+		if !acc.ok {
+			return acc, false
+		}
+	}
+	return acc, true
 }
 
 // owns reports whether c is the child recorded for parent index i (guards shared nodes).
@@ -479,14 +639,43 @@ func CertaintyEquivalent(probs, values []float64, R float64) float64 {
 		return 0
 	}
 	m := math.Inf(-1)
-	for _, x := range values {
-		m = math.Max(m, -x/R)
+	for k, x := range values {
+		if probs[k] > 0 { // an impossible outcome must not set the shift (it would underflow the sum to 0)
+			m = math.Max(m, -x/R)
+		}
+	}
+	if math.IsInf(m, -1) {
+		return 0
+	}
+	if math.IsInf(R, 0) || math.IsInf(m, 1) {
+		return ceLimit(probs, values, R) // R so large or so small that the exponents overflow
 	}
 	s := 0.0
 	for k, x := range values {
-		s += probs[k] * math.Exp(-x/R-m)
+		if probs[k] > 0 {
+			s += probs[k] * math.Exp(-x/R-m)
+		}
 	}
 	return -R * (m + math.Log(s))
+}
+
+// ceLimit is the CE at the limits of R: the EV as |R| → ∞, the worst possible
+// outcome as R → 0⁺ and the best as R → 0⁻.
+func ceLimit(probs, values []float64, R float64) float64 {
+	ev, lo, hi := 0.0, math.Inf(1), math.Inf(-1)
+	for k, x := range values {
+		if probs[k] > 0 {
+			ev += probs[k] * x
+			lo, hi = math.Min(lo, x), math.Max(hi, x)
+		}
+	}
+	switch {
+	case math.IsInf(R, 0):
+		return ev
+	case R > 0:
+		return lo
+	}
+	return hi
 }
 
 // ParseTolerance evaluates a risk tolerance text: a non-zero finite number.
@@ -531,7 +720,12 @@ func (r *Result) markPolicy() {
 }
 
 // forward computes path probability and accumulated cash from the root down.
+// It runs on first use: the roll-back itself does not need it.
 func (r *Result) forward() {
+	r.forwardOnce.Do(r.computeForward)
+}
+
+func (r *Result) computeForward() {
 	count := len(r.Nodes)
 	r.pathValue = make([]decimal.Decimal, count)
 	r.pathProb = make([]decimal.Decimal, count)
@@ -581,6 +775,7 @@ func (r *Result) Paths() []PathRow {
 		if n.Kind != End {
 			continue
 		}
+		r.forward()
 		rows = append(rows, PathRow{
 			End: n, Labels: r.Labels(n), Probability: r.pathProb[i], Payoff: r.pathValue[i],
 			Contribution: r.pathProb[i].Mul(r.pathValue[i]), Optimal: r.onPolicy[i],

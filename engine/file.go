@@ -82,6 +82,9 @@ func Parse(data []byte, name string) (*Project, error) {
 }
 
 func describeJSONError(data []byte, err error) string {
+	if strings.Contains(err.Error(), "exceeded max depth") {
+		return fmt.Sprintf("the tree is nested too deeply (at most %d levels)", MaxDepth)
+	}
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
 		line, col := lineCol(data, se.Offset)
@@ -90,13 +93,14 @@ func describeJSONError(data []byte, err error) string {
 	if errors.Is(err, io.ErrUnexpectedEOF) || errors.Is(err, io.EOF) {
 		return "the file ends too early (truncated JSON)"
 	}
-	if strings.Contains(err.Error(), "exceeded max depth") {
-		return fmt.Sprintf("the tree is nested too deeply (at most %d levels)", MaxDepth)
-	}
 	return "not valid JSON: " + err.Error()
 }
 
+// lineCol turns a decoder offset (just past the offending byte) into a line and column.
 func lineCol(data []byte, off int64) (int, int) {
+	if off > 0 {
+		off--
+	}
 	if off > int64(len(data)) {
 		off = int64(len(data))
 	}
@@ -520,11 +524,15 @@ type writer struct {
 	first  bool
 }
 
+// maxIndent caps indentation so a very deep tree does not write a file that grows
+// with the square of its depth; ordinary trees never reach it.
+const maxIndent = 64
+
+var indentSpaces = strings.Repeat("  ", maxIndent)
+
 func (w *writer) newline() {
 	w.b.WriteByte('\n')
-	for i := 0; i < w.indent; i++ {
-		w.b.WriteString("  ")
-	}
+	w.b.WriteString(indentSpaces[:2*min(w.indent, maxIndent)])
 }
 
 func (w *writer) open(bracket string) {
@@ -642,6 +650,17 @@ func (w *writer) node(root *Node) {
 }
 
 func writeJSONString(b *bytes.Buffer, s string) {
+	plain := true
+	for i := 0; i < len(s) && plain; i++ {
+		c := s[i]
+		plain = c >= 0x20 && c < 0x7f && c != '"' && c != '\\' && c != '<' && c != '>' && c != '&'
+	}
+	if plain { // the common case, written as encoding/json would write it
+		b.WriteByte('"')
+		b.WriteString(s)
+		b.WriteByte('"')
+		return
+	}
 	enc, _ := json.Marshal(s) // a string always marshals
 	b.Write(enc)
 }

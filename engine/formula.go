@@ -515,7 +515,12 @@ func Divide(a, b decimal.Decimal) decimal.Decimal {
 	if places < 0 {
 		places = 0
 	}
-	return a.DivRound(b, places)
+	q := a.DivRound(b, places)
+	// The magnitude estimate can be one digit high; trim to exactly DivisionDigits.
+	if extra := int32(q.NumDigits()) - DivisionDigits; extra > 0 && places-extra >= 0 {
+		q = q.Round(places - extra)
+	}
+	return q
 }
 
 func (b *binary) eval(env Env) (decimal.Decimal, error) {

@@ -31,6 +31,9 @@ type Project struct {
 	Variables  []*Variable
 	Risk       RiskAttitude
 	Root       *Node
+
+	sizeHint int              // node count at the last evaluation, to size slices
+	idCache  map[string]*Node // ids of the last evaluation, when all were unique
 }
 
 // RiskAttitude is the project's stated attitude to risk.
@@ -96,7 +99,10 @@ type Node struct {
 	Collapsed bool // drawn as a stub; a view setting saved with the project
 
 	payoffF cachedFormula
-	index   int // position in the last evaluation's preorder; see Evaluate
+	index   int    // position in the last evaluation's preorder; see Evaluate
+	stamp   uint64 // last evaluation that visited the node
+
+	probCheck probabilityCheck
 }
 
 // Branch leaves a decision or chance node and leads to a child node.
@@ -194,6 +200,7 @@ func (o Objective) Better(a, b float64) bool {
 // so the copy can be evaluated on another goroutine.
 func (p *Project) Clone() *Project {
 	c := *p
+	c.idCache, c.sizeHint = nil, 0
 	c.Variables = make([]*Variable, len(p.Variables))
 	for i, v := range p.Variables {
 		c.Variables[i] = v.Clone()
@@ -242,4 +249,11 @@ func (n *Node) Clone() *Node {
 		}
 	}
 	return root
+}
+
+// probabilityCheck remembers a chance node's last valid constant probabilities.
+type probabilityCheck struct {
+	valid    bool
+	formulas []*Formula // nil for the rest branch
+	probs    []Decimal
 }

@@ -1,6 +1,10 @@
 package engine
 
-import "github.com/shopspring/decimal"
+import (
+	"sync"
+
+	"github.com/shopspring/decimal"
+)
 
 // Result is what Evaluate computes for a project: values, choices, paths and
 // problems. It is read-only data; renderers and analyses read it, never the
@@ -25,6 +29,7 @@ type Result struct {
 	broken       []bool  // node's own fields or subtree could not be evaluated
 	parent       []int32 // parent index, -1 at the root
 	parentBranch []int32
+	forwardOnce  sync.Once
 	riskOn       bool
 	tolerance    float64
 }
@@ -131,6 +136,7 @@ func (r *Result) PathValue(n *Node) decimal.Decimal {
 	if !r.has(n) {
 		return decimal.Zero
 	}
+	r.forward()
 	return r.pathValue[n.index]
 }
 
@@ -139,6 +145,7 @@ func (r *Result) PathProbability(n *Node) decimal.Decimal {
 	if !r.has(n) {
 		return decimal.Zero
 	}
+	r.forward()
 	return r.pathProb[n.index]
 }
 

@@ -1,0 +1,298 @@
+package canvas
+
+import (
+	"bytes"
+	"encoding/xml"
+	"errors"
+	"image/png"
+	"io"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/vgpdf"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ramify-app/ramify/engine"
+)
+
+var fixedDate = time.Date(2026, 3, 14, 0, 0, 0, 0, time.UTC)
+
+// svgTexts parses an SVG with encoding/xml and returns the text of every
+// <text> (including its <title> tooltip) and the root's width and height.
+func svgTexts(t *testing.T, data []byte) (texts []string, w, h float64) {
+	t.Helper()
+	dec := xml.NewDecoder(bytes.NewReader(data))
+	depth := 0
+	var cur strings.Builder
+	for {
+		tok, err := dec.Token()
+		if errors.Is(err, io.EOF) {
+			break
+		}
+		require.NoError(t, err, "SVG must be well-formed XML")
+		switch el := tok.(type) {
+		case xml.StartElement:
+			if el.Name.Local == "svg" {
+				for _, a := range el.Attr {
+					v, _ := strconv.ParseFloat(strings.TrimSuffix(a.Value, "pt"), 64)
+					switch a.Name.Local {
+					case "width":
+						w = v
+					case "height":
+						h = v
+					}
+				}
+			}
+			if el.Name.Local == "text" || el.Name.Local == "title" {
+				depth++
+				if el.Name.Local == "title" {
+					texts = append(texts, cur.String())
+					cur.Reset()
+				}
+			}
+		case xml.EndElement:
+			if el.Name.Local == "text" || el.Name.Local == "title" {
+				depth--
+				texts = append(texts, cur.String())
+				cur.Reset()
+			}
+		case xml.CharData:
+			if depth > 0 {
+				cur.Write(el)
+			}
+		}
+	}
+	return texts, w, h
+}
+
+func TestExportSVG(t *testing.T) {
+	tests := []struct {
+		name  string
+		theme string
+	}{{"light", "light"}, {"dark", "dark"}, {"print", "print"}, {"presentation", "light-presentation"}}
+	p, r := demoProject(t)
+	long := strings.Repeat("a very long branch label ", 12) + "<&> \"quoted\" 東京"
+	p.Root.Branches[0].Label = long
+	r = engine.Evaluate(p)
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			path := filepath.Join(t.TempDir(), "tree.svg")
+			require.NoError(t, Export(p, r, path, ExportOptions{Theme: tc.theme, Date: fixedDate}))
+			data, err := os.ReadFile(path)
+			require.NoError(t, err)
+			texts, _, _ := svgTexts(t, data)
+			all := strings.Join(texts, "\n")
+			engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+				for _, b := range n.Branches {
+					assert.Contains(t, texts, b.Label, "label in a <text> or its <title>")
+				}
+				if n.Kind == engine.End {
+					assert.Contains(t, all, r.Format(r.PathValue(n)))
+				} else {
+					assert.Contains(t, all, r.Format(r.ValueOf(n)))
+				}
+				return true
+			})
+			assert.Contains(t, all, p.Title)
+			assert.Contains(t, all, "14 March 2026")
+		})
+	}
+}
+
+func havePoppler(t *testing.T) {
+	for _, tool := range []string{"pdfinfo", "pdftotext"} {
+		if _, err := exec.LookPath(tool); err != nil {
+			t.Skipf("%s not installed (apt-get install poppler-utils); skipping the PDF reader check", tool)
+		}
+	}
+}
+
+func pdfPages(t *testing.T, path string) int {
+	out, err := exec.Command("pdfinfo", path).CombinedOutput()
+	require.NoError(t, err, "pdfinfo must open the file: %s", out)
+	m := regexp.MustCompile(`(?m)^Pages:\s+(\d+)`).FindSubmatch(out)
+	require.NotNil(t, m, "%s", out)
+	n, _ := strconv.Atoi(string(m[1]))
+	return n
+}
+
+func pdfText(t *testing.T, path string) string {
+	out, err := exec.Command("pdftotext", "-layout", path, "-").CombinedOutput()
+	require.NoError(t, err, "%s", out)
+	return string(out)
+}
+
+func TestExportPDF(t *testing.T) {
+	havePoppler(t)
+	p, r := demoProject(t)
+	dir := t.TempDir()
+
+	t.Run("fit on one page", func(t *testing.T) {
+		for _, page := range PageNames {
+			path := filepath.Join(dir, page+".pdf")
+			require.NoError(t, Export(p, r, path, ExportOptions{Page: page, Landscape: true, Date: fixedDate}))
+			assert.Equal(t, 1, pdfPages(t, path))
+			text := pdfText(t, path)
+			engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+				for _, b := range n.Branches {
+					assert.Contains(t, text, b.Label)
+				}
+				if n.Kind != engine.End {
+					assert.Contains(t, text, r.Format(r.ValueOf(n)))
+				}
+				return true
+			})
+			assert.Contains(t, text, "page 1 of 1")
+			assert.Contains(t, text, p.Title)
+		}
+	})
+
+	t.Run("tiles across pages", func(t *testing.T) {
+		big, rb := evaluated(t, 4, 400)
+		path := filepath.Join(dir, "tiles.pdf")
+		require.NoError(t, Export(big, rb, path, ExportOptions{Page: "A4", Tile: true, Date: fixedDate}))
+		l := LayoutTree(big, rb, FontMeasurer{}, DefaultOptions())
+		// independent count: the content area of portrait A4 less margins and
+		// title block, stepping by the area less the overlap
+		w, h, _ := PageSize("A4", false)
+		th := LightTheme()
+		areaW, areaH := w-2*pageMargin, h-2*pageMargin-headerHeight(&th)
+		cols := math.Ceil((l.Bounds.W - tileOverlap) / (areaW - tileOverlap))
+		rows := math.Ceil((l.Bounds.H - tileOverlap) / (areaH - tileOverlap))
+		want := int(cols * rows)
+		require.Greater(t, want, 1)
+		assert.Equal(t, want, pdfPages(t, path))
+		text := pdfText(t, path)
+		assert.Contains(t, text, "page 2 of "+strconv.Itoa(want))
+		assert.Contains(t, text, "row 1, column 2")
+		engine.Walk(big.Root, func(n *engine.Node, _ int) bool {
+			for _, b := range n.Branches {
+				assert.Contains(t, text, b.Label)
+			}
+			return true
+		})
+	})
+
+	t.Run("non-Latin text does not break the file", func(t *testing.T) {
+		q, _ := demoProject(t)
+		q.Title = "Coût − 東京 🚢 “quoted”"
+		q.Root.Branches[0].Label = "Zürich – €5 “déjà vu”"
+		path := filepath.Join(dir, "unicode.pdf")
+		require.NoError(t, Export(q, engine.Evaluate(q), path, ExportOptions{Date: fixedDate}))
+		text := pdfText(t, path)
+		assert.Contains(t, text, "Zürich – €5 “déjà vu”", "Windows-1252 text survives")
+		assert.Contains(t, text, "Coût - ?? ? “quoted”", "other scripts become '?' rather than garbage")
+	})
+}
+
+func TestDrawTreeIntoReportCanvas(t *testing.T) {
+	// The report draws the tree into part of its own PDF page.
+	havePoppler(t)
+	p, r := demoProject(t)
+	path := filepath.Join(t.TempDir(), "report.pdf")
+	err := writeAtomically(path, func(w io.Writer) error {
+		return drawTreePage(w, p, r)
+	})
+	require.NoError(t, err)
+	assert.Equal(t, 1, pdfPages(t, path))
+	assert.Contains(t, pdfText(t, path), p.Root.Branches[0].Label)
+}
+
+func TestExportPNG(t *testing.T) {
+	p, r := demoProject(t)
+	dir := t.TempDir()
+	svgPath := filepath.Join(dir, "tree.svg")
+	require.NoError(t, Export(p, r, svgPath, ExportOptions{Date: fixedDate}))
+	data, err := os.ReadFile(svgPath)
+	require.NoError(t, err)
+	_, wpt, hpt := svgTexts(t, data)
+	require.Positive(t, wpt)
+	for _, dpi := range []int{72, 96, 150, 300} {
+		path := filepath.Join(dir, "tree.png")
+		require.NoError(t, Export(p, r, path, ExportOptions{DPI: dpi, Date: fixedDate}))
+		f, err := os.Open(path)
+		require.NoError(t, err)
+		img, err := png.Decode(f)
+		f.Close()
+		require.NoError(t, err)
+		// same drawing as the SVG, whose size is in points (1/72 inch)
+		assert.Equal(t, int(math.Ceil(wpt*float64(dpi)/72-0.02)), img.Bounds().Dx(), "dpi %d", dpi)
+		assert.Equal(t, int(math.Ceil(hpt*float64(dpi)/72-0.02)), img.Bounds().Dy(), "dpi %d", dpi)
+		// white paper by default
+		rr, gg, bb, _ := img.At(1, 1).RGBA()
+		assert.Equal(t, [3]uint32{0xffff, 0xffff, 0xffff}, [3]uint32{rr, gg, bb})
+	}
+}
+
+func TestExportBadInput(t *testing.T) {
+	p, r := demoProject(t)
+	dir := t.TempDir()
+	notDir := filepath.Join(dir, "plain-file")
+	require.NoError(t, os.WriteFile(notDir, []byte("x"), 0o644))
+	tests := []struct {
+		name string
+		path string
+		opts ExportOptions
+		want string
+		big  bool
+	}{
+		{"unknown extension", filepath.Join(dir, "tree.gif"), ExportOptions{}, `unknown format ".gif"`, false},
+		{"no extension", filepath.Join(dir, "tree"), ExportOptions{}, "no file extension", false},
+		{"missing folder", filepath.Join(dir, "nope", "tree.png"), ExportOptions{}, "does not exist", false},
+		{"folder is a file", filepath.Join(notDir, "tree.svg"), ExportOptions{}, "is not a folder", false},
+		{"unwritable folder", "/proc/tree.pdf", ExportOptions{}, "cannot write in /proc", false},
+		{"unknown theme", filepath.Join(dir, "tree.svg"), ExportOptions{Theme: "neon"}, `unknown theme "neon"`, false},
+		{"unknown page", filepath.Join(dir, "tree.pdf"), ExportOptions{Page: "B5"}, `unknown page size "B5"`, false},
+		{"bad dpi", filepath.Join(dir, "tree.png"), ExportOptions{DPI: 5}, "dpi 5 is out of range", false},
+		{"image too large", filepath.Join(dir, "huge.png"), ExportOptions{DPI: 1200}, "lower the dpi", true},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			before, _ := os.ReadDir(dir)
+			p, r := p, r
+			if tc.big {
+				p, r = evaluated(t, 2, 3000)
+			}
+			err := Export(p, r, tc.path, tc.opts)
+			require.Error(t, err)
+			assert.Contains(t, err.Error(), tc.want)
+			assert.Contains(t, err.Error(), tc.path, "the message names the file")
+			after, _ := os.ReadDir(dir)
+			assert.Equal(t, len(before), len(after), "no partial or temporary file is left")
+		})
+	}
+	err := Export(&engine.Project{}, nil, filepath.Join(dir, "empty.svg"), ExportOptions{})
+	assert.ErrorContains(t, err, "no tree")
+}
+
+func TestExportKeepsOldFileOnFailure(t *testing.T) {
+	p, r := evaluated(t, 2, 3000)
+	path := filepath.Join(t.TempDir(), "tree.png")
+	require.NoError(t, os.WriteFile(path, []byte("previous export"), 0o644))
+	require.Error(t, Export(p, r, path, ExportOptions{DPI: 1200}))
+	data, err := os.ReadFile(path)
+	require.NoError(t, err)
+	assert.Equal(t, "previous export", string(data))
+}
+
+// drawTreePage is how the report uses DrawTree: its own vgpdf page, the tree in
+// the lower two thirds.
+func drawTreePage(w io.Writer, p *engine.Project, r *engine.Result) error {
+	c := vgpdf.New(vg.Length(595), vg.Length(842))
+	rect := vg.Rectangle{Min: vg.Point{X: 40, Y: 40}, Max: vg.Point{X: 555, Y: 560}}
+	if err := DrawTree(c, rect, p, r, DefaultOptions()); err != nil {
+		return err
+	}
+	_, err := c.WriteTo(w)
+	return err
+}

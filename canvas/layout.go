@@ -1,0 +1,609 @@
+package canvas
+
+import (
+	"math"
+	"strings"
+
+	"github.com/shopspring/decimal"
+
+	"github.com/ramify-app/ramify/engine"
+)
+
+// Layout places every shown node of a tree, left to right: the root at the
+// left, ends at the right, one column per depth. Coordinates are logical units
+// (points) with y growing downwards; Bounds starts at (0, 0).
+type Layout struct {
+	Boxes   []NodeBox // shown nodes in preorder; Boxes[0] is the root
+	Columns []Column  // one per depth
+	Bounds  Rect
+	Theme   Theme
+
+	kids  []int32 // children of box i are kids[Boxes[i].kid0 : kid0+nkids]
+	index map[*engine.Node]int
+}
+
+// Column is the horizontal plan of one depth.
+type Column struct {
+	FanX    float64 // where branches leave the parent's stub and slant to their row
+	BranchX float64 // where the horizontal part of a branch starts
+	NodeX   float64 // centre of the node shapes
+	ValueX  float64 // left edge of the text beside a node (value, payoff, problems)
+	End     float64 // right edge of the column
+}
+
+// NodeBox is one shown node: its place, its extent and the texts drawn around it.
+type NodeBox struct {
+	Node   *engine.Node
+	Parent int // index into Boxes, -1 for the root
+	Branch int // index of the branch in the parent leading here, -1 for the root
+	Depth  int
+	X, Y   float64 // centre of the node shape
+	Top    float64 // extent above Y (labels, value)
+	Bottom float64 // extent below Y (numbers, notes, problems)
+	Hidden int     // nodes hidden below a collapsed node
+
+	Label      TextRun   // branch label above the incoming branch
+	Prob       TextRun   // probability below the incoming branch (chance parents)
+	Cash       TextRun   // cash below the incoming branch
+	Value      TextRun   // rolled-back value beside the node (decision, chance, collapsed)
+	Payoff     TextRun   // path payoff beside an end
+	Notes      []TextRun // small notes under the branch numbers
+	Problems   []TextRun // problem messages under the node
+	HiddenNote TextRun   // "N hidden" under a collapsed node
+
+	kid0, nkids int32
+}
+
+// TextRun is a measured line of text. Full holds the whole text when Text was cut.
+type TextRun struct {
+	Text  string
+	Width float64
+	Full  string
+}
+
+func (t TextRun) empty() bool { return t.Text == "" }
+
+// Rect is an axis-aligned rectangle in logical units, y down.
+type Rect struct{ X, Y, W, H float64 }
+
+func (r Rect) Intersects(o Rect) bool {
+	return r.X <= o.X+o.W && o.X <= r.X+r.W && r.Y <= o.Y+o.H && o.Y <= r.Y+r.H
+}
+
+func (r Rect) Contains(p Point) bool {
+	return p.X >= r.X && p.X <= r.X+r.W && p.Y >= r.Y && p.Y <= r.Y+r.H
+}
+
+func (r Rect) union(o Rect) Rect {
+	if r.W == 0 && r.H == 0 && r.X == 0 && r.Y == 0 {
+		return o
+	}
+	x0, y0 := math.Min(r.X, o.X), math.Min(r.Y, o.Y)
+	x1, y1 := math.Max(r.X+r.W, o.X+o.W), math.Max(r.Y+r.H, o.Y+o.H)
+	return Rect{x0, y0, x1 - x0, y1 - y0}
+}
+
+// Point is a position in logical units.
+type Point struct{ X, Y float64 }
+
+// Kids returns the indexes of the shown children of box i, in branch order.
+func (l *Layout) Kids(i int) []int32 {
+	b := &l.Boxes[i]
+	return l.kids[b.kid0 : b.kid0+b.nkids]
+}
+
+// Index returns the box index of node n, or -1 when n is not shown.
+func (l *Layout) Index(n *engine.Node) int {
+	if l.index == nil {
+		l.index = make(map[*engine.Node]int, len(l.Boxes))
+		for i := range l.Boxes {
+			l.index[l.Boxes[i].Node] = i
+		}
+	}
+	if i, ok := l.index[n]; ok {
+		return i
+	}
+	return -1
+}
+
+// Box is the full extent of box i: incoming branch text, node and text beside it.
+func (l *Layout) Box(i int) Rect {
+	b := &l.Boxes[i]
+	c := l.Columns[b.Depth]
+	return Rect{c.BranchX, b.Y - b.Top, c.End - c.BranchX, b.Top + b.Bottom}
+}
+
+// SubtreeBounds is the extent of box i and everything shown below it.
+func (l *Layout) SubtreeBounds(i int) Rect {
+	r := l.Box(i)
+	stack := []int32{int32(i)}
+	for len(stack) > 0 {
+		j := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		r = r.union(l.Box(int(j)))
+		stack = append(stack, l.Kids(int(j))...)
+	}
+	return r
+}
+
+// Layouter lays trees out and remembers measured text widths and formatted
+// numbers between calls, so the re-layout after an edit only measures and
+// formats what changed. It is not safe for concurrent use.
+type Layouter struct {
+	measure *measureCache
+	nums    map[*engine.Node]*nodeNumbers
+	numsFor numberFormat
+}
+
+type numberFormat struct {
+	decimals int
+	currency string
+	ce       bool
+}
+
+type cachedNumber struct {
+	d  decimal.Decimal
+	s  string
+	ok bool
+}
+
+func (c *cachedNumber) get(d decimal.Decimal, format func(decimal.Decimal) string) string {
+	if c.ok && c.d.Equal(d) {
+		return c.s
+	}
+	c.d, c.s, c.ok = d, format(d), true
+	return c.s
+}
+
+type nodeNumbers struct {
+	prob, cash, value, payoff cachedNumber
+}
+
+// NewLayouter returns a layouter measuring text with m.
+func NewLayouter(m TextMeasurer) *Layouter {
+	if m == nil {
+		m = FontMeasurer{}
+	}
+	return &Layouter{measure: newMeasureCache(m), nums: map[*engine.Node]*nodeNumbers{}}
+}
+
+// LayoutTree is a one-off layout (no cache kept between calls).
+func LayoutTree(p *engine.Project, r *engine.Result, m TextMeasurer, opts Options) *Layout {
+	return NewLayouter(m).Layout(p, r, opts)
+}
+
+// Layout places the tree of p. r may be nil (no evaluation yet): the formula
+// texts are then shown in place of numbers.
+func (lo *Layouter) Layout(p *engine.Project, r *engine.Result, opts Options) *Layout {
+	opts = opts.normalized()
+	th := opts.Theme
+	l := &Layout{Theme: th}
+	if p == nil || p.Root == nil {
+		return l
+	}
+	if r != nil && r.Project != p {
+		r = nil // a result of another project would show wrong numbers
+	}
+	nf := numberFormat{decimals: p.Decimals, currency: p.Currency, ce: opts.ShowCertaintyEquivalent}
+	if nf != lo.numsFor {
+		lo.nums = map[*engine.Node]*nodeNumbers{}
+		lo.numsFor = nf
+	}
+
+	lo.collect(p, r, l, opts)
+	lo.columns(l)
+	placeRows(l)
+	l.finish()
+	if len(lo.nums) > 2*len(l.Boxes)+64 { // forget nodes that were deleted
+		keep := make(map[*engine.Node]*nodeNumbers, len(l.Boxes))
+		for i := range l.Boxes {
+			if v, ok := lo.nums[l.Boxes[i].Node]; ok {
+				keep[l.Boxes[i].Node] = v
+			}
+		}
+		lo.nums = keep
+	}
+	return l
+}
+
+// collect walks the tree without recursion, builds the preorder boxes and
+// measures every text (through the caches).
+func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts Options) {
+	th := &l.Theme
+	mc := lo.measure
+	numT := mc.table(th.NumberSize, false)
+	valT := mc.table(th.ValueSize, true)
+
+	var problems map[string][]string
+	if r != nil && len(r.Problems) > 0 {
+		problems = map[string][]string{}
+		for _, pr := range r.Problems {
+			if pr.NodeID != "" {
+				problems[pr.NodeID] = append(problems[pr.NodeID], pr.Msg)
+			}
+		}
+	}
+	format := func(d decimal.Decimal) string { return engine.FormatValue(d, p.Decimals, p.Currency) }
+	formatP := engine.FormatProbability
+	run := func(t map[string]float64, s string, size float64, bold bool) TextRun {
+		return TextRun{Text: s, Width: mc.width(t, s, size, bold)}
+	}
+	fit := func(s string, size float64, max float64) TextRun {
+		s = cleanText(s)
+		ct := mc.fit(s, size, false, max)
+		tr := TextRun{Text: ct.text, Width: ct.width}
+		if ct.cut {
+			tr.Full = s
+		}
+		return tr
+	}
+	numbers := func(n *engine.Node) *nodeNumbers {
+		nn := lo.nums[n]
+		if nn == nil {
+			nn = &nodeNumbers{}
+			lo.nums[n] = nn
+		}
+		return nn
+	}
+
+	type item struct {
+		n      *engine.Node
+		parent int32
+		branch int32
+		depth  int32
+	}
+	stack := []item{{p.Root, -1, -1, 0}}
+	l.Boxes = make([]NodeBox, 0, 64)
+	for len(stack) > 0 {
+		it := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		n := it.n
+		b := NodeBox{Node: n, Parent: int(it.parent), Branch: int(it.branch), Depth: int(it.depth)}
+		var nn *nodeNumbers
+		if r != nil {
+			nn = numbers(n)
+		}
+		if it.parent >= 0 {
+			parent := l.Boxes[it.parent].Node
+			br := parent.Branches[it.branch]
+			b.Label = fit(br.Label, th.LabelSize, th.MaxLabelWidth)
+			if parent.Kind == engine.Chance {
+				if r != nil {
+					b.Prob = run(numT, nn.prob.get(r.Probability(parent, int(it.branch)), formatP), th.NumberSize, false)
+				} else {
+					b.Prob = fit(br.Probability, th.NumberSize, th.MaxLabelWidth/2)
+				}
+			}
+			if strings.TrimSpace(br.Cash) != "" {
+				if r != nil {
+					b.Cash = run(numT, nn.cash.get(r.Cash(parent, int(it.branch)), format), th.NumberSize, false)
+				} else {
+					b.Cash = fit(br.Cash, th.NumberSize, th.MaxLabelWidth/2)
+				}
+			}
+			for _, s := range opts.notesFor(parent, int(it.branch), n) {
+				b.Notes = append(b.Notes, fit(s, th.NoteSize, th.MaxNoteWidth))
+			}
+		}
+		if n.Kind == engine.End && !(n.Collapsed && len(n.Branches) > 0) {
+			if r != nil {
+				b.Payoff = run(valT, nn.payoff.get(r.PathValue(n), format), th.ValueSize, true)
+			} else if strings.TrimSpace(n.Payoff) != "" {
+				b.Payoff = fit(n.Payoff, th.ValueSize, th.MaxLabelWidth/2)
+			}
+		} else if r != nil {
+			v := r.ValueOf(n)
+			if opts.ShowCertaintyEquivalent {
+				if ce, ok := r.CertaintyEquivalent(n); ok {
+					v = ce
+				}
+			}
+			b.Value = run(valT, nn.value.get(v, format), th.ValueSize, true)
+		}
+		if msgs := problems[n.ID]; len(msgs) > 0 {
+			for _, m := range msgs {
+				b.Problems = append(b.Problems, fit(m, th.NoteSize, th.MaxNoteWidth))
+			}
+		}
+		self := int32(len(l.Boxes))
+		if n.Collapsed && len(n.Branches) > 0 {
+			hidden := -1
+			engine.Walk(n, func(*engine.Node, int) bool { hidden++; return true })
+			b.Hidden = hidden
+			word := " nodes hidden"
+			if hidden == 1 {
+				word = " node hidden"
+			}
+			b.HiddenNote = fit("+"+itoa(hidden)+word, th.NoteSize, th.MaxNoteWidth)
+		} else {
+			for i := len(n.Branches) - 1; i >= 0; i-- {
+				if c := n.Branches[i].To; c != nil {
+					stack = append(stack, item{c, self, int32(i), it.depth + 1})
+				}
+			}
+		}
+		l.Boxes = append(l.Boxes, b)
+	}
+
+	// Children lists: preorder makes a parent precede its children, and
+	// children of one parent appear in branch order.
+	counts := make([]int32, len(l.Boxes))
+	for i := 1; i < len(l.Boxes); i++ {
+		counts[l.Boxes[i].Parent]++
+	}
+	l.kids = make([]int32, len(l.Boxes))
+	var next int32
+	for i := range l.Boxes {
+		l.Boxes[i].kid0 = next
+		next += counts[i]
+	}
+	for i := 1; i < len(l.Boxes); i++ {
+		pb := &l.Boxes[l.Boxes[i].Parent]
+		l.kids[pb.kid0+pb.nkids] = int32(i)
+		pb.nkids++
+	}
+}
+
+func itoa(n int) string {
+	return engine.FormatNumber(decimal.NewFromInt(int64(n)), 0)
+}
+
+// columns sets each depth's horizontal plan and each box's vertical extents.
+func (lo *Layouter) columns(l *Layout) {
+	th := &l.Theme
+	depth := 0
+	for i := range l.Boxes {
+		depth = max(depth, l.Boxes[i].Depth)
+	}
+	branchW := make([]float64, depth+1)
+	valueW := make([]float64, depth+1)
+	lhLabel, lhNum, lhVal, lhNote := th.lineHeight(th.LabelSize), th.lineHeight(th.NumberSize), th.lineHeight(th.ValueSize), th.lineHeight(th.NoteSize)
+	half := math.Max(th.NodeSize, th.EndHeight) / 2
+	for i := range l.Boxes {
+		b := &l.Boxes[i]
+		d := b.Depth
+		w := b.Label.Width
+		nums := b.Prob.Width + b.Cash.Width
+		if !b.Prob.empty() && !b.Cash.empty() {
+			nums += 2 * th.TextPad
+		}
+		w = math.Max(w, nums)
+		for _, n := range b.Notes {
+			w = math.Max(w, n.Width)
+		}
+		branchW[d] = math.Max(branchW[d], w)
+		v := math.Max(b.Value.Width, b.Payoff.Width)
+		v = math.Max(v, b.HiddenNote.Width)
+		for _, p := range b.Problems {
+			v = math.Max(v, p.Width)
+		}
+		valueW[d] = math.Max(valueW[d], v)
+
+		top, bottom := half, half
+		if !b.Label.empty() {
+			top = math.Max(top, th.TextPad+lhLabel)
+		}
+		if !b.Value.empty() {
+			top = math.Max(top, th.TextPad+lhVal)
+		}
+		if !b.Payoff.empty() {
+			top = math.Max(top, lhVal/2)
+			bottom = math.Max(bottom, lhVal/2)
+		}
+		below := 0.0
+		if !b.Prob.empty() || !b.Cash.empty() {
+			below = lhNum
+		}
+		below += float64(len(b.Notes)) * lhNote
+		if below > 0 {
+			bottom = math.Max(bottom, th.TextPad+below)
+		}
+		under := float64(len(b.Problems)) * lhNote
+		if !b.HiddenNote.empty() {
+			under += lhNote
+		}
+		if !b.Payoff.empty() && under > 0 {
+			under += lhVal / 2
+		}
+		if under > 0 {
+			bottom = math.Max(bottom, th.TextPad+under)
+		}
+		b.Top, b.Bottom = top, bottom
+	}
+	l.Columns = make([]Column, depth+1)
+	x := 0.0
+	for d := 0; d <= depth; d++ {
+		c := &l.Columns[d]
+		c.FanX = x
+		if d == 0 {
+			c.BranchX = 0
+			c.NodeX = th.NodeSize / 2
+		} else {
+			c.BranchX = x + th.FanWidth
+			c.NodeX = c.BranchX + math.Max(branchW[d]+2*th.TextPad, th.MinBranch) + th.NodeSize/2
+		}
+		c.ValueX = c.NodeX + math.Max(th.NodeSize, th.EndWidth)/2 + th.TextPad
+		c.End = c.ValueX + valueW[d] + th.TextPad
+		if d < depth {
+			c.End = math.Max(c.End, c.NodeX+th.NodeSize/2+th.StubLength)
+		}
+		x = c.End
+	}
+}
+
+// placeRows sets every box's Y with the tidy tree algorithm of Buchheim,
+// Jünger & Leipert, "Improving Walker's Algorithm to Run in Linear Time"
+// (Graph Drawing 2002, LNCS 2528), run sideways: the paper's x is our y and its
+// levels are our columns. Nodes have their own extents above and below their
+// line (Top, Bottom), so the distance between two neighbours on one level is
+// upper.Bottom + gap + lower.Top; columns never overlap horizontally, so only
+// nodes of one depth can collide, which is exactly what the contours compare.
+//
+// The paper's FIRSTWALK is recursive. Here it runs over the boxes in reverse
+// preorder (every descendant before its ancestor) and each node places its
+// children when it is visited; SECONDWALK runs in preorder. Both use O(n) time
+// and no recursion, so a chain thousands of nodes deep lays out.
+func placeRows(l *Layout) {
+	n := len(l.Boxes)
+	if n == 0 {
+		return
+	}
+	th := &l.Theme
+	prelim := make([]float64, n)
+	mod := make([]float64, n)
+	shift := make([]float64, n)
+	change := make([]float64, n)
+	mid := make([]float64, n)
+	thread := make([]int32, n)
+	ancestor := make([]int32, n)
+	number := make([]int32, n) // index among siblings
+	for i := range thread {
+		thread[i] = -1
+		ancestor[i] = int32(i)
+	}
+	boxes := l.Boxes
+	kids := l.kids
+	for i := range boxes {
+		b := &boxes[i]
+		for k := int32(0); k < b.nkids; k++ {
+			number[kids[b.kid0+k]] = k
+		}
+	}
+	nextLeft := func(v int32) int32 { // the upper contour
+		if b := &boxes[v]; b.nkids > 0 {
+			return kids[b.kid0]
+		}
+		return thread[v]
+	}
+	nextRight := func(v int32) int32 { // the lower contour
+		if b := &boxes[v]; b.nkids > 0 {
+			return kids[b.kid0+b.nkids-1]
+		}
+		return thread[v]
+	}
+	distance := func(upper, lower int32) float64 {
+		gap := th.SubtreeGap
+		if boxes[upper].Parent == boxes[lower].Parent {
+			gap = th.SiblingGap
+		}
+		return boxes[upper].Bottom + gap + boxes[lower].Top
+	}
+	moveSubtree := func(wm, wp int32, s float64) {
+		subtrees := float64(number[wp] - number[wm])
+		change[wp] -= s / subtrees
+		shift[wp] += s
+		change[wm] += s / subtrees
+		prelim[wp] += s
+		mod[wp] += s
+	}
+	apportion := func(v, parent, defaultAncestor int32) int32 {
+		if number[v] == 0 {
+			return defaultAncestor
+		}
+		pb := &boxes[parent]
+		w := kids[pb.kid0+number[v]-1]
+		vip, vop := v, v
+		vim := w
+		vom := kids[pb.kid0]
+		sip, sop, sim, som := mod[vip], mod[vop], mod[vim], mod[vom]
+		for {
+			nr, nl := nextRight(vim), nextLeft(vip)
+			if nr < 0 || nl < 0 {
+				break
+			}
+			vim, vip = nr, nl
+			vom, vop = nextLeft(vom), nextRight(vop)
+			ancestor[vop] = v
+			s := (prelim[vim] + sim) - (prelim[vip] + sip) + distance(vim, vip)
+			if s > 0 {
+				a := ancestor[vim]
+				if boxes[a].Parent != int(parent) {
+					a = defaultAncestor
+				}
+				moveSubtree(a, v, s)
+				sip += s
+				sop += s
+			}
+			sim += mod[vim]
+			sip += mod[vip]
+			som += mod[vom]
+			sop += mod[vop]
+		}
+		if nextRight(vim) >= 0 && nextRight(vop) < 0 {
+			thread[vop] = nextRight(vim)
+			mod[vop] += sim - sop
+		}
+		if nextLeft(vip) >= 0 && nextLeft(vom) < 0 {
+			thread[vom] = nextLeft(vip)
+			mod[vom] += sip - som
+			defaultAncestor = v
+		}
+		return defaultAncestor
+	}
+
+	// FIRSTWALK, bottom-up: when v is visited all its children's subtrees are
+	// done (their own children placed, mid set); v now places the children
+	// against each other, left to right, exactly as the paper's loop does.
+	for vi := n - 1; vi >= 0; vi-- {
+		v := int32(vi)
+		b := &boxes[v]
+		if b.nkids == 0 {
+			mid[v] = 0
+			continue
+		}
+		ch := kids[b.kid0 : b.kid0+b.nkids]
+		defaultAncestor := ch[0]
+		for k, w := range ch {
+			if k == 0 {
+				prelim[w] = mid[w]
+				mod[w] = 0
+			} else {
+				ls := ch[k-1]
+				prelim[w] = prelim[ls] + distance(ls, w)
+				mod[w] = prelim[w] - mid[w]
+			}
+			if boxes[w].nkids == 0 {
+				mod[w] = 0
+			}
+			defaultAncestor = apportion(w, v, defaultAncestor)
+		}
+		// EXECUTESHIFTS
+		var sh, chg float64
+		for k := len(ch) - 1; k >= 0; k-- {
+			w := ch[k]
+			prelim[w] += sh
+			mod[w] += sh
+			chg += change[w]
+			sh += shift[w] + chg
+		}
+		mid[v] = (prelim[ch[0]] + prelim[ch[len(ch)-1]]) / 2
+	}
+	prelim[0] = mid[0]
+
+	// SECONDWALK, top-down in preorder: y = prelim + sum of the ancestors' mods.
+	modsum := make([]float64, n)
+	for i := range boxes {
+		b := &boxes[i]
+		acc := 0.0
+		if b.Parent >= 0 {
+			acc = modsum[b.Parent]
+		}
+		b.Y = prelim[i] + acc
+		modsum[i] = acc + mod[i]
+	}
+}
+
+// finish sets X, moves the drawing so its bounds start at (0, 0) and records them.
+func (l *Layout) finish() {
+	minY, maxY := math.Inf(1), math.Inf(-1)
+	for i := range l.Boxes {
+		b := &l.Boxes[i]
+		b.X = l.Columns[b.Depth].NodeX
+		minY = math.Min(minY, b.Y-b.Top)
+		maxY = math.Max(maxY, b.Y+b.Bottom)
+	}
+	for i := range l.Boxes {
+		l.Boxes[i].Y -= minY
+	}
+	l.Bounds = Rect{0, 0, l.Columns[len(l.Columns)-1].End, maxY - minY}
+}

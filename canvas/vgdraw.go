@@ -1,0 +1,164 @@
+package canvas
+
+import (
+	"errors"
+	"image/color"
+	"math"
+
+	stdfont "golang.org/x/image/font"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/vgpdf"
+
+	"github.com/ramify-app/ramify/engine"
+)
+
+// PDF and PNG are drawn through gonum/plot's vg back-ends (vgpdf, vgimg): one
+// drawing routine below serves both, they embed the same Liberation Sans the
+// layout measured with, and vgpdf gives real text that pdftotext and screen
+// readers can find. vg.Canvas is also what the report (a plot-based PDF) draws
+// on, so the tree can be placed into a report page with DrawTree.
+
+// vgMap maps scene coordinates (y down) into a vg canvas region (y up).
+type vgMap struct {
+	vx, vy float64 // scene point drawn at (left, top)
+	left   float64
+	top    float64
+	k      float64 // scale: points per logical unit
+}
+
+func (m vgMap) pt(p Point) vg.Point {
+	return vg.Point{X: vg.Length(m.left + (p.X-m.vx)*m.k), Y: vg.Length(m.top - (p.Y-m.vy)*m.k)}
+}
+
+// drawVG draws every primitive of s on c. forPDF adapts text and faces to vgpdf.
+func drawVG(c vg.Canvas, s *Scene, m vgMap, forPDF bool) {
+	th := &s.Theme
+	for i := range s.Prims {
+		p := &s.Prims[i]
+		st := th.Style(p.Role)
+		switch p.Kind {
+		case PrimLine, PrimPolyline:
+			if len(p.Points) < 2 {
+				continue
+			}
+			var path vg.Path
+			path.Move(m.pt(p.Points[0]))
+			for _, q := range p.Points[1:] {
+				path.Line(m.pt(q))
+			}
+			stroke(c, path, st, m.k)
+		case PrimPolygon, PrimRect:
+			pts := p.Points
+			if p.Kind == PrimRect {
+				r := p.Rect
+				pts = []Point{{r.X, r.Y}, {r.X + r.W, r.Y}, {r.X + r.W, r.Y + r.H}, {r.X, r.Y + r.H}}
+			}
+			if len(pts) < 3 {
+				continue
+			}
+			var path vg.Path
+			path.Move(m.pt(pts[0]))
+			for _, q := range pts[1:] {
+				path.Line(m.pt(q))
+			}
+			path.Close()
+			fill(c, path, st)
+			stroke(c, path, st, m.k)
+		case PrimCircle:
+			var path vg.Path
+			ctr := m.pt(p.Center)
+			rad := vg.Length(p.Radius * m.k)
+			path.Move(vg.Point{X: ctr.X + rad, Y: ctr.Y})
+			path.Arc(ctr, rad, 0, 2*math.Pi)
+			path.Close()
+			fill(c, path, st)
+			stroke(c, path, st, m.k)
+		case PrimText:
+			col := st.Fill
+			if col.A == 0 {
+				col = st.Stroke
+			}
+			if col.A == 0 || p.Text == "" || p.Size*m.k <= 0 {
+				continue
+			}
+			face := fileFace(p.Size*m.k, p.Bold)
+			w := float64(face.Width(p.Text).Points())
+			at := m.pt(p.At)
+			switch p.Align {
+			case AlignCenter:
+				at.X -= vg.Length(w / 2)
+			case AlignRight:
+				at.X -= vg.Length(w)
+			}
+			s := p.Text
+			if forPDF {
+				s = toCP1252(s)
+				if p.Bold {
+					// vgpdf registers each face under its own name and then asks
+					// for style "B" on top, which it cannot find; present the bold
+					// face as a regular face of its own typeface instead.
+					face.Font.Weight = stdfont.WeightNormal
+					face.Font.Typeface = "LiberationBold"
+				}
+			}
+			c.SetColor(col)
+			c.FillString(face, at, s)
+		}
+	}
+}
+
+func stroke(c vg.Canvas, path vg.Path, st Style, k float64) {
+	if st.Stroke.A == 0 || st.Width <= 0 {
+		return
+	}
+	c.SetColor(st.Stroke)
+	c.SetLineWidth(vg.Length(st.Width * k))
+	var dash []vg.Length
+	for _, d := range st.Dash {
+		dash = append(dash, vg.Length(d*k))
+	}
+	c.SetLineDash(dash, 0)
+	c.Stroke(path)
+	c.SetLineDash(nil, 0)
+}
+
+func fill(c vg.Canvas, path vg.Path, st Style) {
+	if st.Fill.A == 0 {
+		return
+	}
+	c.SetColor(st.Fill)
+	c.Fill(path)
+}
+
+func fillRect(c vg.Canvas, r vg.Rectangle, col color.Color) {
+	var path vg.Path
+	path.Move(r.Min)
+	path.Line(vg.Point{X: r.Max.X, Y: r.Min.Y})
+	path.Line(r.Max)
+	path.Line(vg.Point{X: r.Min.X, Y: r.Max.Y})
+	path.Close()
+	c.SetColor(col)
+	c.Fill(path)
+}
+
+// DrawTree draws the tree of p (with the values of r, which may be nil) into
+// rect of any vg canvas, scaled down to fit and placed at the rect's top left.
+// The report uses it to put the tree on a page of its own PDF.
+func DrawTree(c vg.Canvas, rect vg.Rectangle, p *engine.Project, r *engine.Result, opts Options) error {
+	if p == nil || p.Root == nil {
+		return errors.New("draw tree: the project has no tree")
+	}
+	opts = opts.normalized()
+	l := LayoutTree(p, r, FontMeasurer{}, opts)
+	s := Build(p, r, l, opts, Rect{})
+	w, h := float64(rect.Max.X-rect.Min.X), float64(rect.Max.Y-rect.Min.Y)
+	if w <= 0 || h <= 0 || l.Bounds.W <= 0 || l.Bounds.H <= 0 {
+		return errors.New("draw tree: empty drawing area")
+	}
+	k := math.Min(1, math.Min(w/l.Bounds.W, h/l.Bounds.H))
+	c.Push()
+	defer c.Pop()
+	_, isPDF := c.(*vgpdf.Canvas)
+	drawVG(c, s, vgMap{vx: l.Bounds.X, vy: l.Bounds.Y, left: float64(rect.Min.X), top: float64(rect.Max.Y), k: k}, isPDF)
+	return nil
+}
