@@ -4,36 +4,217 @@ package ui
 
 // shippedModules lists every module linked into Ramify with its licence files.
 var shippedModules = []shippedModule{
-	{Path: "fyne.io/fyne/v2", Version: "v2.7.1", Licence: "BSD-3-Clause, OFL-1.1, Bitstream-Vera", Files: []string{"LICENSE", "theme/font/LICENSE.txt", "theme/font/LICENSE_DejaVu-Powerline.txt", "theme/font/LICENSE_Inter.txt"}, Texts: []int{0, 1, 2, 3}},
-	{Path: "fyne.io/systray", Version: "v1.11.1-0.20250603113521-ca66a66d8b58", Licence: "Apache-2.0", Files: []string{"LICENSE"}, Texts: []int{4}},
-	{Path: "github.com/BurntSushi/toml", Version: "v1.5.0", Licence: "MIT", Files: []string{"COPYING"}, Texts: []int{5}},
-	{Path: "github.com/fredbi/uri", Version: "v1.1.1", Licence: "MIT", Files: []string{"LICENSE.md"}, Texts: []int{6}},
-	{Path: "github.com/fsnotify/fsnotify", Version: "v1.9.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{7}},
-	{Path: "github.com/fyne-io/image", Version: "v0.1.1", Licence: "BSD-3-Clause, Apache-2.0", Files: []string{"LICENSE", "ico/LICENSE-reader", "ico/LICENSE-writer"}, Texts: []int{8, 9, 10}},
-	{Path: "github.com/fyne-io/oksvg", Version: "v0.2.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{11}},
-	{Path: "github.com/go-gl/gl", Version: "v0.0.0-20231021071112-07e5d0ea2e71", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{12}},
-	{Path: "github.com/go-gl/glfw/v3.3/glfw", Version: "v0.0.0-20240506104042-037f3cc74f2a", Licence: "BSD-3-Clause, Zlib", Files: []string{"LICENSE", "glfw/LICENSE.md"}, Texts: []int{13, 14}},
-	{Path: "github.com/go-text/render", Version: "v0.2.0", Licence: "Unlicense, BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{15}},
-	{Path: "github.com/go-text/typesetting", Version: "v0.2.1", Licence: "Unlicense, BSD-3-Clause, MIT", Files: []string{"LICENSE", "harfbuzz/LICENSE"}, Texts: []int{15, 16}},
-	{Path: "github.com/godbus/dbus/v5", Version: "v5.1.0", Licence: "BSD-2-Clause", Files: []string{"LICENSE"}, Texts: []int{17}},
-	{Path: "github.com/jeandeaual/go-locale", Version: "v0.0.0-20250612000132-0ef82f21eade", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{18}},
-	{Path: "github.com/jsummers/gobmp", Version: "v0.0.0-20230614200233-a9de23ed2e25", Licence: "MIT", Files: []string{"COPYING.txt"}, Texts: []int{19}},
-	{Path: "github.com/nfnt/resize", Version: "v0.0.0-20180221191011-83c6a9932646", Licence: "ISC", Files: []string{"LICENSE"}, Texts: []int{20}},
-	{Path: "github.com/nicksnyder/go-i18n/v2", Version: "v2.5.1", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{21}},
-	{Path: "github.com/rymdport/portal", Version: "v0.4.2", Licence: "Apache-2.0", Files: []string{"LICENSE"}, Texts: []int{22}},
-	{Path: "github.com/shopspring/decimal", Version: "v1.4.0", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{23}},
-	{Path: "github.com/srwiley/oksvg", Version: "v0.0.0-20221011165216-be6e8873101c", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{11}},
-	{Path: "github.com/srwiley/rasterx", Version: "v0.0.0-20220730225603-2ab79fcdd4ef", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{11}},
-	{Path: "github.com/yuin/goldmark", Version: "v1.7.8", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{24}},
-	{Path: "go", Version: "1.26.8", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{25}},
-	{Path: "golang.org/x/image", Version: "v0.25.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{25}},
-	{Path: "golang.org/x/net", Version: "v0.35.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{25}},
-	{Path: "golang.org/x/sys", Version: "v0.30.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{25}},
-	{Path: "golang.org/x/text", Version: "v0.23.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{25}},
+	{Path: "codeberg.org/go-fonts/liberation", Version: "v0.5.0", Licence: "BSD-3-Clause; OFL-1.1", Files: []string{"LICENSE", "LICENSE-SIL"}, Texts: []int{0, 1}},
+	{Path: "codeberg.org/go-latex/latex", Version: "v0.1.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{2}},
+	{Path: "codeberg.org/go-pdf/fpdf", Version: "v0.10.0", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{3}},
+	{Path: "fyne.io/fyne/v2", Version: "v2.7.1", Licence: "BSD-3-Clause; OFL-1.1; Bitstream-Vera", Files: []string{"LICENSE", "theme/font/LICENSE.txt", "theme/font/LICENSE_DejaVu-Powerline.txt", "theme/font/LICENSE_Inter.txt"}, Texts: []int{4, 5, 6, 7}},
+	{Path: "fyne.io/systray", Version: "v1.11.1-0.20250603113521-ca66a66d8b58", Licence: "Apache-2.0", Files: []string{"LICENSE"}, Texts: []int{8}},
+	{Path: "git.sr.ht/~sbinet/gg", Version: "v0.6.0", Licence: "MIT", Files: []string{"LICENSE.md"}, Texts: []int{9}},
+	{Path: "github.com/BurntSushi/toml", Version: "v1.5.0", Licence: "MIT", Files: []string{"COPYING"}, Texts: []int{10}},
+	{Path: "github.com/ajstarks/svgo", Version: "v0.0.0-20211024235047-1546f124cd8b", Licence: "CC-BY-4.0", Files: []string{"LICENSE", "LICENSE-link.txt"}, Texts: []int{11, 12}},
+	{Path: "github.com/fredbi/uri", Version: "v1.1.1", Licence: "MIT", Files: []string{"LICENSE.md"}, Texts: []int{13}},
+	{Path: "github.com/fsnotify/fsnotify", Version: "v1.9.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{14}},
+	{Path: "github.com/fyne-io/image", Version: "v0.1.1", Licence: "BSD-3-Clause; Apache-2.0", Files: []string{"LICENSE", "ico/LICENSE-reader", "ico/LICENSE-writer"}, Texts: []int{15, 16, 17}},
+	{Path: "github.com/fyne-io/oksvg", Version: "v0.2.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{18}},
+	{Path: "github.com/go-gl/gl", Version: "v0.0.0-20231021071112-07e5d0ea2e71", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{19}},
+	{Path: "github.com/go-gl/glfw/v3.3/glfw", Version: "v0.0.0-20240506104042-037f3cc74f2a", Licence: "BSD-3-Clause; Zlib", Files: []string{"LICENSE", "glfw/LICENSE.md"}, Texts: []int{20, 21}},
+	{Path: "github.com/go-text/render", Version: "v0.2.0", Licence: "Unlicense OR BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{22}},
+	{Path: "github.com/go-text/typesetting", Version: "v0.2.1", Licence: "Unlicense OR BSD-3-Clause; MIT", Files: []string{"LICENSE", "harfbuzz/LICENSE"}, Texts: []int{22, 23}},
+	{Path: "github.com/godbus/dbus/v5", Version: "v5.1.0", Licence: "BSD-2-Clause", Files: []string{"LICENSE"}, Texts: []int{24}},
+	{Path: "github.com/golang/freetype", Version: "v0.0.0-20170609003504-e2365dfdc4a0", Licence: "FTL OR GPL-2.0-or-later", Files: []string{"LICENSE", "licenses/ftl.txt", "licenses/gpl.txt"}, Texts: []int{25, 26, 27}},
+	{Path: "github.com/jeandeaual/go-locale", Version: "v0.0.0-20250612000132-0ef82f21eade", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{28}},
+	{Path: "github.com/jsummers/gobmp", Version: "v0.0.0-20230614200233-a9de23ed2e25", Licence: "MIT", Files: []string{"COPYING.txt"}, Texts: []int{29}},
+	{Path: "github.com/nfnt/resize", Version: "v0.0.0-20180221191011-83c6a9932646", Licence: "ISC", Files: []string{"LICENSE"}, Texts: []int{30}},
+	{Path: "github.com/nicksnyder/go-i18n/v2", Version: "v2.5.1", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{31}},
+	{Path: "github.com/rymdport/portal", Version: "v0.4.2", Licence: "Apache-2.0", Files: []string{"LICENSE"}, Texts: []int{32}},
+	{Path: "github.com/shopspring/decimal", Version: "v1.4.0", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{33}},
+	{Path: "github.com/srwiley/oksvg", Version: "v0.0.0-20221011165216-be6e8873101c", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{18}},
+	{Path: "github.com/srwiley/rasterx", Version: "v0.0.0-20220730225603-2ab79fcdd4ef", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{18}},
+	{Path: "github.com/yuin/goldmark", Version: "v1.7.8", Licence: "MIT", Files: []string{"LICENSE"}, Texts: []int{34}},
+	{Path: "go", Version: "1.26.8", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
+	{Path: "golang.org/x/image", Version: "v0.25.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
+	{Path: "golang.org/x/net", Version: "v0.35.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
+	{Path: "golang.org/x/sys", Version: "v0.30.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
+	{Path: "golang.org/x/text", Version: "v0.23.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
+	{Path: "gonum.org/v1/plot", Version: "v0.16.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{36}},
 }
 
 // licenceTexts holds each distinct licence text once.
 var licenceTexts = []string{
+	`Copyright ©2020 The go-fonts Authors. All rights reserved.
+
+Redistribution and use in source and binary forms, with or without
+modification, are permitted provided that the following conditions are met:
+    * Redistributions of source code must retain the above copyright
+      notice, this list of conditions and the following disclaimer.
+    * Redistributions in binary form must reproduce the above copyright
+      notice, this list of conditions and the following disclaimer in the
+      documentation and/or other materials provided with the distribution.
+    * Neither the name of the go-fonts project nor the names of its authors and
+      contributors may be used to endorse or promote products derived from this
+      software without specific prior written permission.
+
+THIS SOFTWARE IS PROVIDED BY THE COPYRIGHT HOLDERS AND CONTRIBUTORS "AS IS" AND
+ANY EXPRESS OR IMPLIED WARRANTIES, INCLUDING, BUT NOT LIMITED TO, THE IMPLIED
+WARRANTIES OF MERCHANTABILITY AND FITNESS FOR A PARTICULAR PURPOSE ARE
+DISCLAIMED. IN NO EVENT SHALL THE COPYRIGHT HOLDER OR CONTRIBUTORS BE LIABLE
+FOR ANY DIRECT, INDIRECT, INCIDENTAL, SPECIAL, EXEMPLARY, OR CONSEQUENTIAL
+DAMAGES (INCLUDING, BUT NOT LIMITED TO, PROCUREMENT OF SUBSTITUTE GOODS OR
+SERVICES; LOSS OF USE, DATA, OR PROFITS; OR BUSINESS INTERRUPTION) HOWEVER
+CAUSED AND ON ANY THEORY OF LIABILITY, WHETHER IN CONTRACT, STRICT LIABILITY,
+OR TORT (INCLUDING NEGLIGENCE OR OTHERWISE) ARISING IN ANY WAY OUT OF THE USE
+OF THIS SOFTWARE, EVEN IF ADVISED OF THE POSSIBILITY OF SUCH DAMAGE.
+`,
+	`Digitized data copyright (c) 2010 Google Corporation
+	with Reserved Font Arimo, Tinos and Cousine.
+Copyright (c) 2012 Red Hat, Inc.
+	with Reserved Font Name Liberation.
+
+This Font Software is licensed under the SIL Open Font License,
+Version 1.1.
+
+This license is copied below, and is also available with a FAQ at:
+http://scripts.sil.org/OFL
+
+SIL OPEN FONT LICENSE Version 1.1 - 26 February 2007
+
+PREAMBLE The goals of the Open Font License (OFL) are to stimulate
+worldwide development of collaborative font projects, to support the font
+creation efforts of academic and linguistic communities, and to provide
+a free and open framework in which fonts may be shared and improved in
+partnership with others.
+
+The OFL allows the licensed fonts to be used, studied, modified and
+redistributed freely as long as they are not sold by themselves.
+The fonts, including any derivative works, can be bundled, embedded,
+redistributed and/or sold with any software provided that any reserved
+names are not used by derivative works.  The fonts and derivatives,
+however, cannot be released under any other type of license.  The
+requirement for fonts to remain under this license does not apply to
+any document created using the fonts or their derivatives.
+
+ 
+
+DEFINITIONS
+"Font Software" refers to the set of files released by the Copyright
+Holder(s) under this license and clearly marked as such.
+This may include source files, build scripts and documentation.
+
+"Reserved Font Name" refers to any names specified as such after the
+copyright statement(s).
+
+"Original Version" refers to the collection of Font Software components
+as distributed by the Copyright Holder(s).
+
+"Modified Version" refers to any derivative made by adding to, deleting,
+or substituting ? in part or in whole ?
+any of the components of the Original Version, by changing formats or
+by porting the Font Software to a new environment.
+
+"Author" refers to any designer, engineer, programmer, technical writer
+or other person who contributed to the Font Software.
+
+
+PERMISSION & CONDITIONS
+
+Permission is hereby granted, free of charge, to any person obtaining a
+copy of the Font Software, to use, study, copy, merge, embed, modify,
+redistribute, and sell modified and unmodified copies of the Font
+Software, subject to the following conditions:
+
+1) Neither the Font Software nor any of its individual components,in
+   Original or Modified Versions, may be sold by itself.
+
+2) Original or Modified Versions of the Font Software may be bundled,
+   redistributed and/or sold with any software, provided that each copy
+   contains the above copyright notice and this license. These can be
+   included either as stand-alone text files, human-readable headers or
+   in the appropriate machine-readable metadata fields within text or
+   binary files as long as those fields can be easily viewed by the user.
+
+3) No Modified Version of the Font Software may use the Reserved Font
+   Name(s) unless explicit written permission is granted by the
+   corresponding Copyright Holder. This restriction only applies to the
+   primary font name as presented to the users.
+
+4) The name(s) of the Copyright Holder(s) or the Author(s) of the Font
+   Software shall not be used to promote, endorse or advertise any
+   Modified Version, except to acknowledge the contribution(s) of the
+   Copyright Holder(s) and the Author(s) or with their explicit written
+   permission.
+
+5) The Font Software, modified or unmodified, in part or in whole, must
+   be distributed entirely under this license, and must not be distributed
+   under any other license. The requirement for fonts to remain under
+   this license does not apply to any document created using the Font
+   Software.
+
+
+ 
+TERMINATION
+This license becomes null and void if any of the above conditions are not met.
+
+ 
+
+DISCLAIMER
+THE FONT SOFTWARE IS PROVIDED "AS IS", WITHOUT WARRANTY OF ANY KIND,
+EXPRESS OR IMPLIED, INCLUDING BUT NOT LIMITED TO ANY WARRANTIES OF
+MERCHANTABILITY, FITNESS FOR A PARTICULAR PURPOSE AND NONINFRINGEMENT
+OF COPYRIGHT, PATENT, TRADEMARK, OR OTHER RIGHT.  IN NO EVENT SHALL THE
+COPYRIGHT HOLDER BE LIABLE FOR ANY CLAIM, DAMAGES OR OTHER LIABILITY,
+INCLUDING ANY GENERAL, SPECIAL, INDIRECT, INCIDENTAL, OR CONSEQUENTIAL
+DAMAGES, WHETHER IN AN ACTION OF CONTRACT, TORT OR OTHERWISE, ARISING
+FROM, OUT OF THE USE OR INABILITY TO USE THE FONT SOFTWARE OR FROM OTHER
+DEALINGS IN THE FONT SOFTWARE.
+`,
+	`Copyright ©2020 The go-latex Authors. All rights reserved.
+
+Redistribution and use in source and binary forms, with or without
+modification, are permitted provided that the following conditions are met:
+    * Redistributions of source code must retain the above copyright
+      notice, this list of conditions and the following disclaimer.
+    * Redistributions in binary form must reproduce the above copyright
+      notice, this list of conditions and the following disclaimer in the
+      documentation and/or other materials provided with the distribution.
+    * Neither the name of the go-latex project nor the names of its authors and
+      contributors may be used to endorse or promote products derived from this
+      software without specific prior written permission.
+
+THIS SOFTWARE IS PROVIDED BY THE COPYRIGHT HOLDERS AND CONTRIBUTORS "AS IS" AND
+ANY EXPRESS OR IMPLIED WARRANTIES, INCLUDING, BUT NOT LIMITED TO, THE IMPLIED
+WARRANTIES OF MERCHANTABILITY AND FITNESS FOR A PARTICULAR PURPOSE ARE
+DISCLAIMED. IN NO EVENT SHALL THE COPYRIGHT HOLDER OR CONTRIBUTORS BE LIABLE
+FOR ANY DIRECT, INDIRECT, INCIDENTAL, SPECIAL, EXEMPLARY, OR CONSEQUENTIAL
+DAMAGES (INCLUDING, BUT NOT LIMITED TO, PROCUREMENT OF SUBSTITUTE GOODS OR
+SERVICES; LOSS OF USE, DATA, OR PROFITS; OR BUSINESS INTERRUPTION) HOWEVER
+CAUSED AND ON ANY THEORY OF LIABILITY, WHETHER IN CONTRACT, STRICT LIABILITY,
+OR TORT (INCLUDING NEGLIGENCE OR OTHERWISE) ARISING IN ANY WAY OUT OF THE USE
+OF THIS SOFTWARE, EVEN IF ADVISED OF THE POSSIBILITY OF SUCH DAMAGE.
+`,
+	`MIT License
+
+Copyright (c) 2021 The Go-PDF authors
+Copyright (c) 2020 David Barnes
+Copyright (c) 2017 Kurt Jung and contributors acknowledged in the documentation
+
+Permission is hereby granted, free of charge, to any person obtaining a copy
+of this software and associated documentation files (the "Software"), to deal
+in the Software without restriction, including without limitation the rights
+to use, copy, modify, merge, publish, distribute, sublicense, and/or sell
+copies of the Software, and to permit persons to whom the Software is
+furnished to do so, subject to the following conditions:
+
+The above copyright notice and this permission notice shall be included in all
+copies or substantial portions of the Software.
+
+THE SOFTWARE IS PROVIDED "AS IS", WITHOUT WARRANTY OF ANY KIND, EXPRESS OR
+IMPLIED, INCLUDING BUT NOT LIMITED TO THE WARRANTIES OF MERCHANTABILITY,
+FITNESS FOR A PARTICULAR PURPOSE AND NONINFRINGEMENT. IN NO EVENT SHALL THE
+AUTHORS OR COPYRIGHT HOLDERS BE LIABLE FOR ANY CLAIM, DAMAGES OR OTHER
+LIABILITY, WHETHER IN AN ACTION OF CONTRACT, TORT OR OTHERWISE, ARISING FROM,
+OUT OF OR IN CONNECTION WITH THE SOFTWARE OR THE USE OR OTHER DEALINGS IN THE
+SOFTWARE.
+`,
 	`BSD 3-Clause License
 
 Copyright (C) 2018 Fyne.io developers (see AUTHORS)
@@ -496,6 +677,27 @@ OTHER DEALINGS IN THE FONT SOFTWARE.
    See the License for the specific language governing permissions and
    limitations under the License.
 `,
+	`Copyright (C) 2022 The gg Authors
+Copyright (C) 2016 Michael Fogleman
+
+Permission is hereby granted, free of charge, to any person obtaining a copy
+of this software and associated documentation files (the "Software"), to deal
+in the Software without restriction, including without limitation the rights
+to use, copy, modify, merge, publish, distribute, sublicense, and/or sell
+copies of the Software, and to permit persons to whom the Software is
+furnished to do so, subject to the following conditions:
+
+The above copyright notice and this permission notice shall be included in all
+copies or substantial portions of the Software.
+
+THE SOFTWARE IS PROVIDED "AS IS", WITHOUT WARRANTY OF ANY KIND, EXPRESS OR
+IMPLIED, INCLUDING BUT NOT LIMITED TO THE WARRANTIES OF MERCHANTABILITY,
+FITNESS FOR A PARTICULAR PURPOSE AND NONINFRINGEMENT. IN NO EVENT SHALL THE
+AUTHORS OR COPYRIGHT HOLDERS BE LIABLE FOR ANY CLAIM, DAMAGES OR OTHER
+LIABILITY, WHETHER IN AN ACTION OF CONTRACT, TORT OR OTHERWISE, ARISING FROM,
+OUT OF OR IN CONNECTION WITH THE SOFTWARE OR THE USE OR OTHER DEALINGS IN THE
+SOFTWARE.
+`,
 	`The MIT License (MIT)
 
 Copyright (c) 2013 TOML authors
@@ -517,6 +719,231 @@ AUTHORS OR COPYRIGHT HOLDERS BE LIABLE FOR ANY CLAIM, DAMAGES OR OTHER
 LIABILITY, WHETHER IN AN ACTION OF CONTRACT, TORT OR OTHERWISE, ARISING FROM,
 OUT OF OR IN CONNECTION WITH THE SOFTWARE OR THE USE OR OTHER DEALINGS IN
 THE SOFTWARE.
+`,
+	`Creative Commons Attribution 4.0 International Public License 
+
+By exercising the Licensed Rights (defined below), You accept and agree to
+be bound by the terms and conditions of this Creative Commons Attribution
+4.0 International Public License ("Public License"). To the extent this
+Public License may be interpreted as a contract, You are granted the
+Licensed Rights in consideration of Your acceptance of these terms and
+conditions, and the Licensor grants You such rights in consideration
+of benefits the Licensor receives from making the Licensed Material
+available under these terms and conditions.
+
+Section 1 – Definitions.
+
+Adapted Material means material subject to Copyright and Similar Rights
+that is derived from or based upon the Licensed Material and in which
+the Licensed Material is translated, altered, arranged, transformed, or
+otherwise modified in a manner requiring permission under the Copyright
+and Similar Rights held by the Licensor. For purposes of this Public
+License, where the Licensed Material is a musical work, performance,
+or sound recording, Adapted Material is always produced where the
+Licensed Material is synched in timed relation with a moving image.
+Adapter's License means the license You apply to Your Copyright and
+Similar Rights in Your contributions to Adapted Material in accordance
+with the terms and conditions of this Public License.  Copyright and
+Similar Rights means copyright and/or similar rights closely related to
+copyright including, without limitation, performance, broadcast, sound
+recording, and Sui Generis Database Rights, without regard to how the
+rights are labeled or categorized. For purposes of this Public License,
+the rights specified in Section 2(b)(1)-(2) are not Copyright and Similar
+Rights.  Effective Technological Measures means those measures that,
+in the absence of proper authority, may not be circumvented under laws
+fulfilling obligations under Article 11 of the WIPO Copyright Treaty
+adopted on December 20, 1996, and/or similar international agreements.
+Exceptions and Limitations means fair use, fair dealing, and/or any other
+exception or limitation to Copyright and Similar Rights that applies to
+Your use of the Licensed Material.  Licensed Material means the artistic
+or literary work, database, or other material to which the Licensor
+applied this Public License.  Licensed Rights means the rights granted
+to You subject to the terms and conditions of this Public License, which
+are limited to all Copyright and Similar Rights that apply to Your use
+of the Licensed Material and that the Licensor has authority to license.
+Licensor means the individual(s) or entity(ies) granting rights under
+this Public License.  Share means to provide material to the public by
+any means or process that requires permission under the Licensed Rights,
+such as reproduction, public display, public performance, distribution,
+dissemination, communication, or importation, and to make material
+available to the public including in ways that members of the public
+may access the material from a place and at a time individually chosen
+by them.  Sui Generis Database Rights means rights other than copyright
+resulting from Directive 96/9/EC of the European Parliament and of the
+Council of 11 March 1996 on the legal protection of databases, as amended
+and/or succeeded, as well as other essentially equivalent rights anywhere
+in the world.  You means the individual or entity exercising the Licensed
+Rights under this Public License. Your has a corresponding meaning.
+Section 2 – Scope.
+
+License grant.  Subject to the terms and conditions of this Public
+License, the Licensor hereby grants You a worldwide, royalty-free,
+non-sublicensable, non-exclusive, irrevocable license to exercise the
+Licensed Rights in the Licensed Material to: reproduce and Share the
+Licensed Material, in whole or in part; and produce, reproduce, and
+Share Adapted Material.  Exceptions and Limitations. For the avoidance
+of doubt, where Exceptions and Limitations apply to Your use, this
+Public License does not apply, and You do not need to comply with
+its terms and conditions.  Term. The term of this Public License is
+specified in Section 6(a).  Media and formats; technical modifications
+allowed. The Licensor authorizes You to exercise the Licensed Rights in
+all media and formats whether now known or hereafter created, and to make
+technical modifications necessary to do so. The Licensor waives and/or
+agrees not to assert any right or authority to forbid You from making
+technical modifications necessary to exercise the Licensed Rights,
+including technical modifications necessary to circumvent Effective
+Technological Measures. For purposes of this Public License, simply making
+modifications authorized by this Section 2(a)(4) never produces Adapted
+Material.  Downstream recipients.  Offer from the Licensor – Licensed
+Material. Every recipient of the Licensed Material automatically receives
+an offer from the Licensor to exercise the Licensed Rights under the terms
+and conditions of this Public License.  No downstream restrictions. You
+may not offer or impose any additional or different terms or conditions
+on, or apply any Effective Technological Measures to, the Licensed
+Material if doing so restricts exercise of the Licensed Rights by any
+recipient of the Licensed Material.  No endorsement. Nothing in this
+Public License constitutes or may be construed as permission to assert
+or imply that You are, or that Your use of the Licensed Material is,
+connected with, or sponsored, endorsed, or granted official status by,
+the Licensor or others designated to receive attribution as provided in
+Section 3(a)(1)(A)(i).  Other rights.
+
+Moral rights, such as the right of integrity, are not licensed under
+this Public License, nor are publicity, privacy, and/or other similar
+personality rights; however, to the extent possible, the Licensor waives
+and/or agrees not to assert any such rights held by the Licensor to the
+limited extent necessary to allow You to exercise the Licensed Rights, but
+not otherwise.  Patent and trademark rights are not licensed under this
+Public License.  To the extent possible, the Licensor waives any right
+to collect royalties from You for the exercise of the Licensed Rights,
+whether directly or through a collecting society under any voluntary or
+waivable statutory or compulsory licensing scheme. In all other cases
+the Licensor expressly reserves any right to collect such royalties.
+Section 3 – License Conditions.
+
+Your exercise of the Licensed Rights is expressly made subject to the
+following conditions.
+
+Attribution.
+
+If You Share the Licensed Material (including in modified form), You must:
+
+retain the following if it is supplied by the Licensor with the Licensed
+Material: identification of the creator(s) of the Licensed Material and
+any others designated to receive attribution, in any reasonable manner
+requested by the Licensor (including by pseudonym if designated); a
+copyright notice; a notice that refers to this Public License; a notice
+that refers to the disclaimer of warranties; a URI or hyperlink to the
+Licensed Material to the extent reasonably practicable; indicate if You
+modified the Licensed Material and retain an indication of any previous
+modifications; and indicate the Licensed Material is licensed under this
+Public License, and include the text of, or the URI or hyperlink to,
+this Public License.  You may satisfy the conditions in Section 3(a)(1)
+in any reasonable manner based on the medium, means, and context in which
+You Share the Licensed Material. For example, it may be reasonable to
+satisfy the conditions by providing a URI or hyperlink to a resource
+that includes the required information.  If requested by the Licensor,
+You must remove any of the information required by Section 3(a)(1)(A)
+to the extent reasonably practicable.  If You Share Adapted Material You
+produce, the Adapter's License You apply must not prevent recipients of
+the Adapted Material from complying with this Public License.  Section 4
+– Sui Generis Database Rights.
+
+Where the Licensed Rights include Sui Generis Database Rights that apply
+to Your use of the Licensed Material:
+
+for the avoidance of doubt, Section 2(a)(1) grants You the right to
+extract, reuse, reproduce, and Share all or a substantial portion of the
+contents of the database; if You include all or a substantial portion of
+the database contents in a database in which You have Sui Generis Database
+Rights, then the database in which You have Sui Generis Database Rights
+(but not its individual contents) is Adapted Material; and You must comply
+with the conditions in Section 3(a) if You Share all or a substantial
+portion of the contents of the database.  For the avoidance of doubt,
+this Section 4 supplements and does not replace Your obligations under
+this Public License where the Licensed Rights include other Copyright and
+Similar Rights.  Section 5 – Disclaimer of Warranties and Limitation
+of Liability.
+
+Unless otherwise separately undertaken by the Licensor, to the
+extent possible, the Licensor offers the Licensed Material as-is and
+as-available, and makes no representations or warranties of any kind
+concerning the Licensed Material, whether express, implied, statutory,
+or other. This includes, without limitation, warranties of title,
+merchantability, fitness for a particular purpose, non-infringement,
+absence of latent or other defects, accuracy, or the presence or absence
+of errors, whether or not known or discoverable. Where disclaimers of
+warranties are not allowed in full or in part, this disclaimer may not
+apply to You.  To the extent possible, in no event will the Licensor
+be liable to You on any legal theory (including, without limitation,
+negligence) or otherwise for any direct, special, indirect, incidental,
+consequential, punitive, exemplary, or other losses, costs, expenses,
+or damages arising out of this Public License or use of the Licensed
+Material, even if the Licensor has been advised of the possibility of
+such losses, costs, expenses, or damages. Where a limitation of liability
+is not allowed in full or in part, this limitation may not apply to You.
+The disclaimer of warranties and limitation of liability provided above
+shall be interpreted in a manner that, to the extent possible, most
+closely approximates an absolute disclaimer and waiver of all liability.
+Section 6 – Term and Termination.
+
+This Public License applies for the term of the Copyright and Similar
+Rights licensed here. However, if You fail to comply with this
+Public License, then Your rights under this Public License terminate
+automatically.  Where Your right to use the Licensed Material has
+terminated under Section 6(a), it reinstates:
+
+automatically as of the date the violation is cured, provided it is
+cured within 30 days of Your discovery of the violation; or upon express
+reinstatement by the Licensor.  For the avoidance of doubt, this Section
+6(b) does not affect any right the Licensor may have to seek remedies
+for Your violations of this Public License.  For the avoidance of doubt,
+the Licensor may also offer the Licensed Material under separate terms
+or conditions or stop distributing the Licensed Material at any time;
+however, doing so will not terminate this Public License.  Sections 1,
+5, 6, 7, and 8 survive termination of this Public License.  Section 7
+– Other Terms and Conditions.
+
+The Licensor shall not be bound by any additional or different terms or
+conditions communicated by You unless expressly agreed.  Any arrangements,
+understandings, or agreements regarding the Licensed Material not stated
+herein are separate from and independent of the terms and conditions of
+this Public License.  Section 8 – Interpretation.
+
+For the avoidance of doubt, this Public License does not, and shall not be
+interpreted to, reduce, limit, restrict, or impose conditions on any use
+of the Licensed Material that could lawfully be made without permission
+under this Public License.  To the extent possible, if any provision of
+this Public License is deemed unenforceable, it shall be automatically
+reformed to the minimum extent necessary to make it enforceable. If
+the provision cannot be reformed, it shall be severed from this Public
+License without affecting the enforceability of the remaining terms
+and conditions.  No term or condition of this Public License will be
+waived and no failure to comply consented to unless expressly agreed
+to by the Licensor.  Nothing in this Public License constitutes or may
+be interpreted as a limitation upon, or waiver of, any privileges and
+immunities that apply to the Licensor or You, including from the legal
+processes of any jurisdiction or authority.  Creative Commons is not
+a party to its public licenses. Notwithstanding, Creative Commons may
+elect to apply one of its public licenses to material it publishes and
+in those instances will be considered the “Licensor.” The text of
+the Creative Commons public licenses is dedicated to the public domain
+under the CC0 Public Domain Dedication. Except for the limited purpose of
+indicating that material is shared under a Creative Commons public license
+or as otherwise permitted by the Creative Commons policies published at
+creativecommons.org/policies, Creative Commons does not authorize the
+use of the trademark “Creative Commons” or any other trademark or
+logo of Creative Commons without its prior written consent including,
+without limitation, in connection with any unauthorized modifications
+to any of its public licenses or any other arrangements, understandings,
+or agreements concerning use of licensed material. For the avoidance of
+doubt, this paragraph does not form part of the public licenses.
+
+Creative Commons may be contacted at creativecommons.org.
+`,
+	`The contents of this repository are Licensed under 
+the Creative Commons Attribution 4.0 International license as described in
+https://creativecommons.org/licenses/by/4.0/legalcode
 `,
 	`The MIT License (MIT)
 
@@ -1047,6 +1474,21 @@ LIABILITY, WHETHER IN CONTRACT, STRICT LIABILITY, OR TORT (INCLUDING
 NEGLIGENCE OR OTHERWISE) ARISING IN ANY WAY OUT OF THE USE OF THIS
 SOFTWARE, EVEN IF ADVISED OF THE POSSIBILITY OF SUCH DAMAGE.
 `,
+	`Use of the Freetype-Go software is subject to your choice of exactly one of
+the following two licenses:
+  * The FreeType License, which is similar to the original BSD license with
+    an advertising clause, or
+  * The GNU General Public License (GPL), version 2 or later.
+
+The text of these licenses are available in the licenses/ftl.txt and the
+licenses/gpl.txt files respectively. They are also available at
+http://freetype.sourceforge.net/license.html
+
+The Luxi fonts in the testdata directory are licensed separately. See the
+testdata/COPYING file for details.
+`,
+	"The FreeType Project LICENSE\n                    ----------------------------\n\n                            2006-Jan-27\n\n                    Copyright 1996-2002, 2006 by\n          David Turner, Robert Wilhelm, and Werner Lemberg\n\n\n\nIntroduction\n============\n\n  The FreeType  Project is distributed in  several archive packages;\n  some of them may contain, in addition to the FreeType font engine,\n  various tools and  contributions which rely on, or  relate to, the\n  FreeType Project.\n\n  This  license applies  to all  files found  in such  packages, and\n  which do not  fall under their own explicit  license.  The license\n  affects  thus  the  FreeType   font  engine,  the  test  programs,\n  documentation and makefiles, at the very least.\n\n  This  license   was  inspired  by  the  BSD,   Artistic,  and  IJG\n  (Independent JPEG  Group) licenses, which  all encourage inclusion\n  and  use of  free  software in  commercial  and freeware  products\n  alike.  As a consequence, its main points are that:\n\n    o We don't promise that this software works. However, we will be\n      interested in any kind of bug reports. (`as is' distribution)\n\n    o You can  use this software for whatever you  want, in parts or\n      full form, without having to pay us. (`royalty-free' usage)\n\n    o You may not pretend that  you wrote this software.  If you use\n      it, or  only parts of it,  in a program,  you must acknowledge\n      somewhere  in  your  documentation  that  you  have  used  the\n      FreeType code. (`credits')\n\n  We  specifically  permit  and  encourage  the  inclusion  of  this\n  software, with  or without modifications,  in commercial products.\n  We  disclaim  all warranties  covering  The  FreeType Project  and\n  assume no liability related to The FreeType Project.\n\n\n  Finally,  many  people  asked  us  for  a  preferred  form  for  a\n  credit/disclaimer to use in compliance with this license.  We thus\n  encourage you to use the following text:\n\n   \"\"\"\n    Portions of this software are copyright \xa9 <year> The FreeType\n    Project (www.freetype.org).  All rights reserved.\n   \"\"\"\n\n  Please replace <year> with the value from the FreeType version you\n  actually use.\n\n\nLegal Terms\n===========\n\n0. Definitions\n--------------\n\n  Throughout this license,  the terms `package', `FreeType Project',\n  and  `FreeType  archive' refer  to  the  set  of files  originally\n  distributed  by the  authors  (David Turner,  Robert Wilhelm,  and\n  Werner Lemberg) as the `FreeType Project', be they named as alpha,\n  beta or final release.\n\n  `You' refers to  the licensee, or person using  the project, where\n  `using' is a generic term including compiling the project's source\n  code as  well as linking it  to form a  `program' or `executable'.\n  This  program is  referred to  as  `a program  using the  FreeType\n  engine'.\n\n  This  license applies  to all  files distributed  in  the original\n  FreeType  Project,   including  all  source   code,  binaries  and\n  documentation,  unless  otherwise  stated   in  the  file  in  its\n  original, unmodified form as  distributed in the original archive.\n  If you are  unsure whether or not a particular  file is covered by\n  this license, you must contact us to verify this.\n\n  The FreeType  Project is copyright (C) 1996-2000  by David Turner,\n  Robert Wilhelm, and Werner Lemberg.  All rights reserved except as\n  specified below.\n\n1. No Warranty\n--------------\n\n  THE FREETYPE PROJECT  IS PROVIDED `AS IS' WITHOUT  WARRANTY OF ANY\n  KIND, EITHER  EXPRESS OR IMPLIED,  INCLUDING, BUT NOT  LIMITED TO,\n  WARRANTIES  OF  MERCHANTABILITY   AND  FITNESS  FOR  A  PARTICULAR\n  PURPOSE.  IN NO EVENT WILL ANY OF THE AUTHORS OR COPYRIGHT HOLDERS\n  BE LIABLE  FOR ANY DAMAGES CAUSED  BY THE USE OR  THE INABILITY TO\n  USE, OF THE FREETYPE PROJECT.\n\n2. Redistribution\n-----------------\n\n  This  license  grants  a  worldwide, royalty-free,  perpetual  and\n  irrevocable right  and license to use,  execute, perform, compile,\n  display,  copy,   create  derivative  works   of,  distribute  and\n  sublicense the  FreeType Project (in  both source and  object code\n  forms)  and  derivative works  thereof  for  any  purpose; and  to\n  authorize others  to exercise  some or all  of the  rights granted\n  herein, subject to the following conditions:\n\n    o Redistribution of  source code  must retain this  license file\n      (`FTL.TXT') unaltered; any  additions, deletions or changes to\n      the original  files must be clearly  indicated in accompanying\n      documentation.   The  copyright   notices  of  the  unaltered,\n      original  files must  be  preserved in  all  copies of  source\n      files.\n\n    o Redistribution in binary form must provide a  disclaimer  that\n      states  that  the software is based in part of the work of the\n      FreeType Team,  in  the  distribution  documentation.  We also\n      encourage you to put an URL to the FreeType web page  in  your\n      documentation, though this isn't mandatory.\n\n  These conditions  apply to any  software derived from or  based on\n  the FreeType Project,  not just the unmodified files.   If you use\n  our work, you  must acknowledge us.  However, no  fee need be paid\n  to us.\n\n3. Advertising\n--------------\n\n  Neither the  FreeType authors and  contributors nor you  shall use\n  the name of the  other for commercial, advertising, or promotional\n  purposes without specific prior written permission.\n\n  We suggest,  but do not require, that  you use one or  more of the\n  following phrases to refer  to this software in your documentation\n  or advertising  materials: `FreeType Project',  `FreeType Engine',\n  `FreeType library', or `FreeType Distribution'.\n\n  As  you have  not signed  this license,  you are  not  required to\n  accept  it.   However,  as  the FreeType  Project  is  copyrighted\n  material, only  this license, or  another one contracted  with the\n  authors, grants you  the right to use, distribute,  and modify it.\n  Therefore,  by  using,  distributing,  or modifying  the  FreeType\n  Project, you indicate that you understand and accept all the terms\n  of this license.\n\n4. Contacts\n-----------\n\n  There are two mailing lists related to FreeType:\n\n    o freetype@nongnu.org\n\n      Discusses general use and applications of FreeType, as well as\n      future and  wanted additions to the  library and distribution.\n      If  you are looking  for support,  start in  this list  if you\n      haven't found anything to help you in the documentation.\n\n    o freetype-devel@nongnu.org\n\n      Discusses bugs,  as well  as engine internals,  design issues,\n      specific licenses, porting, etc.\n\n  Our home page can be found at\n\n    http://www.freetype.org\n\n\n--- end of FTL.TXT ---\n",
+	"GNU GENERAL PUBLIC LICENSE\n\t\t       Version 2, June 1991\n\n Copyright (C) 1989, 1991 Free Software Foundation, Inc.\n     51 Franklin St, Fifth Floor, Boston, MA  02110-1301  USA\n Everyone is permitted to copy and distribute verbatim copies\n of this license document, but changing it is not allowed.\n\n\t\t\t    Preamble\n\n  The licenses for most software are designed to take away your\nfreedom to share and change it.  By contrast, the GNU General Public\nLicense is intended to guarantee your freedom to share and change free\nsoftware--to make sure the software is free for all its users.  This\nGeneral Public License applies to most of the Free Software\nFoundation's software and to any other program whose authors commit to\nusing it.  (Some other Free Software Foundation software is covered by\nthe GNU Library General Public License instead.)  You can apply it to\nyour programs, too.\n\n  When we speak of free software, we are referring to freedom, not\nprice.  Our General Public Licenses are designed to make sure that you\nhave the freedom to distribute copies of free software (and charge for\nthis service if you wish), that you receive source code or can get it\nif you want it, that you can change the software or use pieces of it\nin new free programs; and that you know you can do these things.\n\n  To protect your rights, we need to make restrictions that forbid\nanyone to deny you these rights or to ask you to surrender the rights.\nThese restrictions translate to certain responsibilities for you if you\ndistribute copies of the software, or if you modify it.\n\n  For example, if you distribute copies of such a program, whether\ngratis or for a fee, you must give the recipients all the rights that\nyou have.  You must make sure that they, too, receive or can get the\nsource code.  And you must show them these terms so they know their\nrights.\n\n  We protect your rights with two steps: (1) copyright the software, and\n(2) offer you this license which gives you legal permission to copy,\ndistribute and/or modify the software.\n\n  Also, for each author's protection and ours, we want to make certain\nthat everyone understands that there is no warranty for this free\nsoftware.  If the software is modified by someone else and passed on, we\nwant its recipients to know that what they have is not the original, so\nthat any problems introduced by others will not reflect on the original\nauthors' reputations.\n\n  Finally, any free program is threatened constantly by software\npatents.  We wish to avoid the danger that redistributors of a free\nprogram will individually obtain patent licenses, in effect making the\nprogram proprietary.  To prevent this, we have made it clear that any\npatent must be licensed for everyone's free use or not licensed at all.\n\n  The precise terms and conditions for copying, distribution and\nmodification follow.\n\f\n\t\t    GNU GENERAL PUBLIC LICENSE\n   TERMS AND CONDITIONS FOR COPYING, DISTRIBUTION AND MODIFICATION\n\n  0. This License applies to any program or other work which contains\na notice placed by the copyright holder saying it may be distributed\nunder the terms of this General Public License.  The \"Program\", below,\nrefers to any such program or work, and a \"work based on the Program\"\nmeans either the Program or any derivative work under copyright law:\nthat is to say, a work containing the Program or a portion of it,\neither verbatim or with modifications and/or translated into another\nlanguage.  (Hereinafter, translation is included without limitation in\nthe term \"modification\".)  Each licensee is addressed as \"you\".\n\nActivities other than copying, distribution and modification are not\ncovered by this License; they are outside its scope.  The act of\nrunning the Program is not restricted, and the output from the Program\nis covered only if its contents constitute a work based on the\nProgram (independent of having been made by running the Program).\nWhether that is true depends on what the Program does.\n\n  1. You may copy and distribute verbatim copies of the Program's\nsource code as you receive it, in any medium, provided that you\nconspicuously and appropriately publish on each copy an appropriate\ncopyright notice and disclaimer of warranty; keep intact all the\nnotices that refer to this License and to the absence of any warranty;\nand give any other recipients of the Program a copy of this License\nalong with the Program.\n\nYou may charge a fee for the physical act of transferring a copy, and\nyou may at your option offer warranty protection in exchange for a fee.\n\n  2. You may modify your copy or copies of the Program or any portion\nof it, thus forming a work based on the Program, and copy and\ndistribute such modifications or work under the terms of Section 1\nabove, provided that you also meet all of these conditions:\n\n    a) You must cause the modified files to carry prominent notices\n    stating that you changed the files and the date of any change.\n\n    b) You must cause any work that you distribute or publish, that in\n    whole or in part contains or is derived from the Program or any\n    part thereof, to be licensed as a whole at no charge to all third\n    parties under the terms of this License.\n\n    c) If the modified program normally reads commands interactively\n    when run, you must cause it, when started running for such\n    interactive use in the most ordinary way, to print or display an\n    announcement including an appropriate copyright notice and a\n    notice that there is no warranty (or else, saying that you provide\n    a warranty) and that users may redistribute the program under\n    these conditions, and telling the user how to view a copy of this\n    License.  (Exception: if the Program itself is interactive but\n    does not normally print such an announcement, your work based on\n    the Program is not required to print an announcement.)\n\f\nThese requirements apply to the modified work as a whole.  If\nidentifiable sections of that work are not derived from the Program,\nand can be reasonably considered independent and separate works in\nthemselves, then this License, and its terms, do not apply to those\nsections when you distribute them as separate works.  But when you\ndistribute the same sections as part of a whole which is a work based\non the Program, the distribution of the whole must be on the terms of\nthis License, whose permissions for other licensees extend to the\nentire whole, and thus to each and every part regardless of who wrote it.\n\nThus, it is not the intent of this section to claim rights or contest\nyour rights to work written entirely by you; rather, the intent is to\nexercise the right to control the distribution of derivative or\ncollective works based on the Program.\n\nIn addition, mere aggregation of another work not based on the Program\nwith the Program (or with a work based on the Program) on a volume of\na storage or distribution medium does not bring the other work under\nthe scope of this License.\n\n  3. You may copy and distribute the Program (or a work based on it,\nunder Section 2) in object code or executable form under the terms of\nSections 1 and 2 above provided that you also do one of the following:\n\n    a) Accompany it with the complete corresponding machine-readable\n    source code, which must be distributed under the terms of Sections\n    1 and 2 above on a medium customarily used for software interchange; or,\n\n    b) Accompany it with a written offer, valid for at least three\n    years, to give any third party, for a charge no more than your\n    cost of physically performing source distribution, a complete\n    machine-readable copy of the corresponding source code, to be\n    distributed under the terms of Sections 1 and 2 above on a medium\n    customarily used for software interchange; or,\n\n    c) Accompany it with the information you received as to the offer\n    to distribute corresponding source code.  (This alternative is\n    allowed only for noncommercial distribution and only if you\n    received the program in object code or executable form with such\n    an offer, in accord with Subsection b above.)\n\nThe source code for a work means the preferred form of the work for\nmaking modifications to it.  For an executable work, complete source\ncode means all the source code for all modules it contains, plus any\nassociated interface definition files, plus the scripts used to\ncontrol compilation and installation of the executable.  However, as a\nspecial exception, the source code distributed need not include\nanything that is normally distributed (in either source or binary\nform) with the major components (compiler, kernel, and so on) of the\noperating system on which the executable runs, unless that component\nitself accompanies the executable.\n\nIf distribution of executable or object code is made by offering\naccess to copy from a designated place, then offering equivalent\naccess to copy the source code from the same place counts as\ndistribution of the source code, even though third parties are not\ncompelled to copy the source along with the object code.\n\f\n  4. You may not copy, modify, sublicense, or distribute the Program\nexcept as expressly provided under this License.  Any attempt\notherwise to copy, modify, sublicense or distribute the Program is\nvoid, and will automatically terminate your rights under this License.\nHowever, parties who have received copies, or rights, from you under\nthis License will not have their licenses terminated so long as such\nparties remain in full compliance.\n\n  5. You are not required to accept this License, since you have not\nsigned it.  However, nothing else grants you permission to modify or\ndistribute the Program or its derivative works.  These actions are\nprohibited by law if you do not accept this License.  Therefore, by\nmodifying or distributing the Program (or any work based on the\nProgram), you indicate your acceptance of this License to do so, and\nall its terms and conditions for copying, distributing or modifying\nthe Program or works based on it.\n\n  6. Each time you redistribute the Program (or any work based on the\nProgram), the recipient automatically receives a license from the\noriginal licensor to copy, distribute or modify the Program subject to\nthese terms and conditions.  You may not impose any further\nrestrictions on the recipients' exercise of the rights granted herein.\nYou are not responsible for enforcing compliance by third parties to\nthis License.\n\n  7. If, as a consequence of a court judgment or allegation of patent\ninfringement or for any other reason (not limited to patent issues),\nconditions are imposed on you (whether by court order, agreement or\notherwise) that contradict the conditions of this License, they do not\nexcuse you from the conditions of this License.  If you cannot\ndistribute so as to satisfy simultaneously your obligations under this\nLicense and any other pertinent obligations, then as a consequence you\nmay not distribute the Program at all.  For example, if a patent\nlicense would not permit royalty-free redistribution of the Program by\nall those who receive copies directly or indirectly through you, then\nthe only way you could satisfy both it and this License would be to\nrefrain entirely from distribution of the Program.\n\nIf any portion of this section is held invalid or unenforceable under\nany particular circumstance, the balance of the section is intended to\napply and the section as a whole is intended to apply in other\ncircumstances.\n\nIt is not the purpose of this section to induce you to infringe any\npatents or other property right claims or to contest validity of any\nsuch claims; this section has the sole purpose of protecting the\nintegrity of the free software distribution system, which is\nimplemented by public license practices.  Many people have made\ngenerous contributions to the wide range of software distributed\nthrough that system in reliance on consistent application of that\nsystem; it is up to the author/donor to decide if he or she is willing\nto distribute software through any other system and a licensee cannot\nimpose that choice.\n\nThis section is intended to make thoroughly clear what is believed to\nbe a consequence of the rest of this License.\n\f\n  8. If the distribution and/or use of the Program is restricted in\ncertain countries either by patents or by copyrighted interfaces, the\noriginal copyright holder who places the Program under this License\nmay add an explicit geographical distribution limitation excluding\nthose countries, so that distribution is permitted only in or among\ncountries not thus excluded.  In such case, this License incorporates\nthe limitation as if written in the body of this License.\n\n  9. The Free Software Foundation may publish revised and/or new versions\nof the General Public License from time to time.  Such new versions will\nbe similar in spirit to the present version, but may differ in detail to\naddress new problems or concerns.\n\nEach version is given a distinguishing version number.  If the Program\nspecifies a version number of this License which applies to it and \"any\nlater version\", you have the option of following the terms and conditions\neither of that version or of any later version published by the Free\nSoftware Foundation.  If the Program does not specify a version number of\nthis License, you may choose any version ever published by the Free Software\nFoundation.\n\n  10. If you wish to incorporate parts of the Program into other free\nprograms whose distribution conditions are different, write to the author\nto ask for permission.  For software which is copyrighted by the Free\nSoftware Foundation, write to the Free Software Foundation; we sometimes\nmake exceptions for this.  Our decision will be guided by the two goals\nof preserving the free status of all derivatives of our free software and\nof promoting the sharing and reuse of software generally.\n\n\t\t\t    NO WARRANTY\n\n  11. BECAUSE THE PROGRAM IS LICENSED FREE OF CHARGE, THERE IS NO WARRANTY\nFOR THE PROGRAM, TO THE EXTENT PERMITTED BY APPLICABLE LAW.  EXCEPT WHEN\nOTHERWISE STATED IN WRITING THE COPYRIGHT HOLDERS AND/OR OTHER PARTIES\nPROVIDE THE PROGRAM \"AS IS\" WITHOUT WARRANTY OF ANY KIND, EITHER EXPRESSED\nOR IMPLIED, INCLUDING, BUT NOT LIMITED TO, THE IMPLIED WARRANTIES OF\nMERCHANTABILITY AND FITNESS FOR A PARTICULAR PURPOSE.  THE ENTIRE RISK AS\nTO THE QUALITY AND PERFORMANCE OF THE PROGRAM IS WITH YOU.  SHOULD THE\nPROGRAM PROVE DEFECTIVE, YOU ASSUME THE COST OF ALL NECESSARY SERVICING,\nREPAIR OR CORRECTION.\n\n  12. IN NO EVENT UNLESS REQUIRED BY APPLICABLE LAW OR AGREED TO IN WRITING\nWILL ANY COPYRIGHT HOLDER, OR ANY OTHER PARTY WHO MAY MODIFY AND/OR\nREDISTRIBUTE THE PROGRAM AS PERMITTED ABOVE, BE LIABLE TO YOU FOR DAMAGES,\nINCLUDING ANY GENERAL, SPECIAL, INCIDENTAL OR CONSEQUENTIAL DAMAGES ARISING\nOUT OF THE USE OR INABILITY TO USE THE PROGRAM (INCLUDING BUT NOT LIMITED\nTO LOSS OF DATA OR DATA BEING RENDERED INACCURATE OR LOSSES SUSTAINED BY\nYOU OR THIRD PARTIES OR A FAILURE OF THE PROGRAM TO OPERATE WITH ANY OTHER\nPROGRAMS), EVEN IF SUCH HOLDER OR OTHER PARTY HAS BEEN ADVISED OF THE\nPOSSIBILITY OF SUCH DAMAGES.\n\n\t\t     END OF TERMS AND CONDITIONS\n\f\n\t    How to Apply These Terms to Your New Programs\n\n  If you develop a new program, and you want it to be of the greatest\npossible use to the public, the best way to achieve this is to make it\nfree software which everyone can redistribute and change under these terms.\n\n  To do so, attach the following notices to the program.  It is safest\nto attach them to the start of each source file to most effectively\nconvey the exclusion of warranty; and each file should have at least\nthe \"copyright\" line and a pointer to where the full notice is found.\n\n    <one line to give the program's name and a brief idea of what it does.>\n    Copyright (C) <year>  <name of author>\n\n    This program is free software; you can redistribute it and/or modify\n    it under the terms of the GNU General Public License as published by\n    the Free Software Foundation; either version 2 of the License, or\n    (at your option) any later version.\n\n    This program is distributed in the hope that it will be useful,\n    but WITHOUT ANY WARRANTY; without even the implied warranty of\n    MERCHANTABILITY or FITNESS FOR A PARTICULAR PURPOSE.  See the\n    GNU General Public License for more details.\n\n    You should have received a copy of the GNU General Public License\n    along with this program; if not, write to the Free Software\n    Foundation, Inc., 51 Franklin St, Fifth Floor, Boston, MA  02110-1301  USA\n\n\nAlso add information on how to contact you by electronic and paper mail.\n\nIf the program is interactive, make it output a short notice like this\nwhen it starts in an interactive mode:\n\n    Gnomovision version 69, Copyright (C) year  name of author\n    Gnomovision comes with ABSOLUTELY NO WARRANTY; for details type `show w'.\n    This is free software, and you are welcome to redistribute it\n    under certain conditions; type `show c' for details.\n\nThe hypothetical commands `show w' and `show c' should show the appropriate\nparts of the General Public License.  Of course, the commands you use may\nbe called something other than `show w' and `show c'; they could even be\nmouse-clicks or menu items--whatever suits your program.\n\nYou should also get your employer (if you work as a programmer) or your\nschool, if any, to sign a \"copyright disclaimer\" for the program, if\nnecessary.  Here is a sample; alter the names:\n\n  Yoyodyne, Inc., hereby disclaims all copyright interest in the program\n  `Gnomovision' (which makes passes at compilers) written by James Hacker.\n\n  <signature of Ty Coon>, 1 April 1989\n  Ty Coon, President of Vice\n\nThis General Public License does not permit incorporating your program into\nproprietary programs.  If your program is a subroutine library, you may\nconsider it more useful to permit linking proprietary applications with the\nlibrary.  If this is what you want to do, use the GNU Library General\nPublic License instead of this License.\n",
 	`MIT License
 
 Copyright (c) 2020 Alexis Jeandeau
@@ -1419,6 +1861,30 @@ LIMITED TO, PROCUREMENT OF SUBSTITUTE GOODS OR SERVICES; LOSS OF USE,
 DATA, OR PROFITS; OR BUSINESS INTERRUPTION) HOWEVER CAUSED AND ON ANY
 THEORY OF LIABILITY, WHETHER IN CONTRACT, STRICT LIABILITY, OR TORT
 (INCLUDING NEGLIGENCE OR OTHERWISE) ARISING IN ANY WAY OUT OF THE USE
+OF THIS SOFTWARE, EVEN IF ADVISED OF THE POSSIBILITY OF SUCH DAMAGE.
+`,
+	`Copyright ©2013 The Gonum Authors. All rights reserved.
+
+Redistribution and use in source and binary forms, with or without
+modification, are permitted provided that the following conditions are met:
+    * Redistributions of source code must retain the above copyright
+      notice, this list of conditions and the following disclaimer.
+    * Redistributions in binary form must reproduce the above copyright
+      notice, this list of conditions and the following disclaimer in the
+      documentation and/or other materials provided with the distribution.
+    * Neither the name of the Gonum project nor the names of its authors and
+      contributors may be used to endorse or promote products derived from this
+      software without specific prior written permission.
+
+THIS SOFTWARE IS PROVIDED BY THE COPYRIGHT HOLDERS AND CONTRIBUTORS "AS IS" AND
+ANY EXPRESS OR IMPLIED WARRANTIES, INCLUDING, BUT NOT LIMITED TO, THE IMPLIED
+WARRANTIES OF MERCHANTABILITY AND FITNESS FOR A PARTICULAR PURPOSE ARE
+DISCLAIMED. IN NO EVENT SHALL THE COPYRIGHT HOLDER OR CONTRIBUTORS BE LIABLE
+FOR ANY DIRECT, INDIRECT, INCIDENTAL, SPECIAL, EXEMPLARY, OR CONSEQUENTIAL
+DAMAGES (INCLUDING, BUT NOT LIMITED TO, PROCUREMENT OF SUBSTITUTE GOODS OR
+SERVICES; LOSS OF USE, DATA, OR PROFITS; OR BUSINESS INTERRUPTION) HOWEVER
+CAUSED AND ON ANY THEORY OF LIABILITY, WHETHER IN CONTRACT, STRICT LIABILITY,
+OR TORT (INCLUDING NEGLIGENCE OR OTHERWISE) ARISING IN ANY WAY OUT OF THE USE
 OF THIS SOFTWARE, EVEN IF ADVISED OF THE POSSIBILITY OF SUCH DAMAGE.
 `,
 }
