@@ -36,8 +36,8 @@ var CanvasThemes = []CanvasTheme{ThemeLight, ThemeDark, ThemePrint}
 // Limits and defaults of the user's preferences.
 const (
 	MaxRecentFiles         = 10
-	DefaultDecimals        = 2   // as engine.Parse assumes when a file gives none
-	DefaultAutosaveSeconds = 120 // common practice for desktop editors: a few minutes
+	DefaultDecimals        = 2  // as engine.Parse assumes when a file gives none
+	DefaultAutosaveSeconds = 30 // the editor's own fallback in StartAutosave
 	MinAutosaveSeconds     = 10
 	MaxAutosaveSeconds     = 3600
 	MaxDecimals            = 12 // engine.Parse accepts 0 to 12
