@@ -1,0 +1,103 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"text/tabwriter"
+
+	"gonum.org/v1/plot"
+
+	"github.com/ramify-app/ramify/engine"
+	"github.com/ramify-app/ramify/engine/analysis"
+)
+
+func init() {
+	register("tornado", "tornado diagram: root value with each variable at its low and high (--json, --csv, -o chart)", runTornado)
+}
+
+func runTornado(args []string, stdout, stderr io.Writer) int {
+	fs := newFlags("tornado", stderr)
+	asJSON := fs.Bool("json", false, "print one JSON object (exact decimal strings)")
+	asCSV := fs.Bool("csv", false, "print the table as CSV")
+	out := fs.String("o", "", "write the chart to this file (.png, .svg or .pdf)")
+	path, ok := parseArgs(fs, args, stderr)
+	if !ok {
+		return exitUsage
+	}
+	if *asJSON && *asCSV {
+		fmt.Fprintln(stderr, "ramify tornado: choose one of --json and --csv")
+		return exitUsage
+	}
+	p, r, code := loadProject(path, stderr)
+	if code != exitOK {
+		return code
+	}
+	if code := requireValid(path, r, stderr); code != exitOK {
+		return code
+	}
+	res, err := analysis.Tornado(context.Background(), p, r)
+	if err != nil {
+		fmt.Fprintf(stderr, "ramify tornado: %s: %s\n", path, err)
+		return exitInvalid
+	}
+	for _, s := range res.Skipped {
+		fmt.Fprintln(stderr, "ramify tornado: "+s)
+	}
+	if len(res.Bars) == 0 {
+		fmt.Fprintf(stderr, "ramify tornado: %s: no variable has both a low and a high; give ranges in the variables table\n", path)
+		return exitInvalid
+	}
+	if *out != "" {
+		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+			return code
+		}
+	}
+	switch {
+	case *asJSON:
+		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
+	case *asCSV:
+		if err := res.WriteCSV(stdout); err != nil {
+			fmt.Fprintln(stderr, "ramify tornado:", err)
+			return exitInvalid
+		}
+		return exitOK
+	}
+	printTornado(stdout, res)
+	return exitOK
+}
+
+func printTornado(w io.Writer, t *analysis.TornadoResult) {
+	f := func(d engine.Decimal) string { return engine.FormatValue(d, t.Decimals, t.Unit) }
+	fmt.Fprintf(w, "Tornado diagram: root %s, base %s\n", t.ValueWord, f(t.Base))
+	if t.Decision != nil {
+		fmt.Fprintf(w, "Recommendation at base: %q at %q\n", t.Alternatives[t.BaseChoice], engine.NodeTitle(t.Decision))
+	}
+	fmt.Fprintln(w)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "variable\tlow\thigh\tat low\tat high\tswing\tflips\t")
+	for _, b := range t.Bars {
+		flip := ""
+		if b.Flips {
+			flip = "yes"
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", b.Variable, b.Low, b.High, f(b.AtLow), f(b.AtHigh), f(b.Swing), flip)
+	}
+	tw.Flush()
+	fmt.Fprintln(w, "(flips: the variable's range changes the recommendation; every figure is exact)")
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, engine.Caution)
+}
+
+// saveChart builds a chart and writes it by extension.
+func saveSensChart(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
+	pl, err := build()
+	if err == nil {
+		err = analysis.SaveSensitivityChart(pl, path)
+	}
+	if err != nil {
+		fmt.Fprintf(stderr, "%s: chart: %s\n", cmd, err)
+		return exitInvalid
+	}
+	return exitOK
+}
