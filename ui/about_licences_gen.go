@@ -36,6 +36,7 @@ var shippedModules = []shippedModule{
 	{Path: "golang.org/x/net", Version: "v0.35.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
 	{Path: "golang.org/x/sys", Version: "v0.30.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
 	{Path: "golang.org/x/text", Version: "v0.23.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{35}},
+	{Path: "gonum.org/v1/gonum", Version: "v0.16.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{36}},
 	{Path: "gonum.org/v1/plot", Version: "v0.16.0", Licence: "BSD-3-Clause", Files: []string{"LICENSE"}, Texts: []int{36}},
 }
 
