@@ -9,8 +9,9 @@
 #
 # The version and build number come from FyneApp.toml only.
 
+GO ?= go
 FYNE_TOOLS_VERSION ?= v1.7.4
-GOBIN_DIR ?= $(or $(shell go env GOBIN),$(shell go env GOPATH)/bin)
+GOBIN_DIR ?= $(or $(shell $(GO) env GOBIN),$(shell $(GO) env GOPATH)/bin)
 FYNE ?= $(GOBIN_DIR)/fyne
 DIST ?= dist
 DIST_DIR = $(abspath $(DIST))
@@ -22,7 +23,7 @@ PACKAGE_ARCHIVE = $(DIST_DIR)/Ramify.tar.xz
 fyne-tool:
 	@if ! "$(FYNE)" version 2>/dev/null | grep -q 'cli version: $(FYNE_TOOLS_VERSION)$$'; then \
 		echo "installing fyne.io/tools/cmd/fyne@$(FYNE_TOOLS_VERSION) into $(GOBIN_DIR)"; \
-		GOBIN="$(GOBIN_DIR)" go install fyne.io/tools/cmd/fyne@$(FYNE_TOOLS_VERSION); \
+		GOBIN="$(GOBIN_DIR)" $(GO) install fyne.io/tools/cmd/fyne@$(FYNE_TOOLS_VERSION); \
 	fi
 
 # The binary is built here (release mode, symbols stripped) and handed to
@@ -33,7 +34,7 @@ fyne-tool:
 package: fyne-tool
 	@mkdir -p "$(DIST_DIR)"
 	@rm -f "$(PACKAGE_ARCHIVE)"
-	CGO_ENABLED=1 go build -tags release -trimpath -ldflags "-s -w" -o "$(DIST_DIR)/ramify" ./cmd/ramify
+	CGO_ENABLED=1 $(GO) build -tags release -trimpath -ldflags "-s -w" -o "$(DIST_DIR)/ramify" ./cmd/ramify
 	@cp FyneApp.toml "$(DIST_DIR)/FyneApp.toml.committed"
 	cd "$(DIST_DIR)" && "$(FYNE)" package --os linux --release \
 		--source-dir "$(CURDIR)" --executable "$(DIST_DIR)/ramify"; \
@@ -48,7 +49,7 @@ package: fyne-tool
 package-darwin: fyne-tool
 	@mkdir -p "$(DIST_DIR)"
 	@rm -rf "$(DIST_DIR)/Ramify.app"
-	CGO_ENABLED=1 go build -tags release -trimpath -ldflags "-s -w" -o "$(DIST_DIR)/ramify" ./cmd/ramify
+	CGO_ENABLED=1 $(GO) build -tags release -trimpath -ldflags "-s -w" -o "$(DIST_DIR)/ramify" ./cmd/ramify
 	@cp FyneApp.toml "$(DIST_DIR)/FyneApp.toml.committed"
 	cd "$(DIST_DIR)" && "$(FYNE)" package --os darwin --release \
 		--source-dir "$(CURDIR)" --executable "$(DIST_DIR)/ramify"; \
@@ -76,4 +77,4 @@ package-windows: fyne-tool
 # Runs `make package` and lists the archive; skipped (with a message) when the
 # Fyne tool is not installed. Kept behind a build tag so `go test ./...` never builds it.
 package-test:
-	go test -tags packaging -run '^TestPackageArchive$$' -count=1 -timeout 30m -v ./cmd/ramify
+	$(GO) test -tags packaging -run '^TestPackageArchive$$' -count=1 -timeout 30m -v ./cmd/ramify
