@@ -53,8 +53,3 @@ func openWindow(args []string, stderr io.Writer) int {
 	w.ShowAndRun()
 	return exitOK
 }
-
-func printVersion(stdout io.Writer) int {
-	fmt.Fprintln(stdout, "ramify (development)")
-	return exitOK
-}
