@@ -103,6 +103,7 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 			e.confirmDiscard("opening another project", func() { _ = e.OpenPath(path) })
 		}
 	})
+	e.initViewOptions()
 	e.setProject(p, path, name)
 	return e
 }
