@@ -40,10 +40,14 @@ fuzz: setup
 smoke: build
 	bash .ci/smoke.sh ./ramify $(DEMO)
 
-test: vet unit fuzz smoke
+# The packaging test runs only where the Fyne packaging tool is installed
+# (make fyne-tool); elsewhere it is skipped with a message.
+test: vet unit fuzz smoke package-test
 
 bench: setup
 	$(GO) test ./... -run '^$$' -bench . -benchmem
 
 clean:
-	rm -f ramify
+	rm -rf ramify dist
+
+include .ci/package.mk

@@ -72,3 +72,14 @@ func BenchmarkFastRoll1k(b *testing.B) {
 		_ = m.Roll()
 	}
 }
+
+// The editor also asks for path figures (end payoffs, path probabilities) on every edit.
+func BenchmarkRollBackWithPaths10k(b *testing.B) {
+	p := enginetest.Wide(10_000)
+	engine.Evaluate(p)
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		r := engine.Evaluate(p)
+		_ = r.PathValue(p.Root)
+	}
+}

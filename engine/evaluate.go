@@ -732,28 +732,55 @@ func (r *Result) computeForward() {
 	if count == 0 {
 		return
 	}
-	r.pathProb[0] = one
+	// As in the roll-back, int64 arithmetic where it fits, decimal where it does not.
+	sv, sp := make([]small, count), make([]small, count)
+	r.pathProb[0], sp[0] = one, small{c: 1, ok: true}
+	r.pathValue[0], sv[0] = decimal.Zero, small{ok: true}
 	for i := 1; i < count; i++ {
 		pi, bi := int(r.parent[i]), int(r.parentBranch[i])
 		pn := r.Nodes[pi]
-		v := r.pathValue[pi]
+		var cash, prob decimal.Decimal
+		hasCash, hasProb := false, false
 		if pn.Kind == Decision || pn.Kind == Chance {
-			if c := r.cash[pi][bi]; !c.IsZero() {
-				v = v.Add(c)
-			}
+			cash = r.cash[pi][bi]
+			hasCash = !cash.IsZero()
 		}
-		r.pathValue[i] = v
-		pp := r.pathProb[pi]
 		if pn.Kind == Chance {
-			if p := r.prob[pi][bi]; !p.Equal(one) {
-				pp = pp.Mul(p)
-			}
+			prob, hasProb = r.prob[pi][bi], true
 		}
-		r.pathProb[i] = pp
+		sv[i], sp[i] = sv[pi], sp[pi]
+		if hasCash {
+			sv[i] = sv[pi].add(smallOf(cash))
+		}
+		if hasProb {
+			sp[i] = sp[pi].mul(smallOf(prob))
+		}
+		if sv[i].ok {
+			r.pathValue[i] = sv[i].dec()
+		} else {
+			r.pathValue[i] = r.pathValue[pi]
+			if hasCash {
+				r.pathValue[i] = r.pathValue[i].Add(cash)
+			}
+			sv[i] = smallOf(r.pathValue[i])
+		}
+		if sp[i].ok {
+			r.pathProb[i] = sp[i].dec()
+		} else {
+			r.pathProb[i] = r.pathProb[pi]
+			if hasProb {
+				r.pathProb[i] = r.pathProb[i].Mul(prob)
+			}
+			sp[i] = smallOf(r.pathProb[i])
+		}
 	}
 	for i, n := range r.Nodes {
 		if n.Kind == End {
-			r.pathValue[i] = r.pathValue[i].Add(r.payoff[i])
+			if s := sv[i].add(smallOf(r.payoff[i])); s.ok {
+				r.pathValue[i] = s.dec()
+			} else {
+				r.pathValue[i] = r.pathValue[i].Add(r.payoff[i])
+			}
 		}
 	}
 }

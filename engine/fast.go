@@ -42,6 +42,7 @@ type fastShared struct {
 	varF    []floatFn // in dependency order; nil for variables that failed
 	order   []int     // variable evaluation order
 	fields  []fastField
+	dynamic []int // fields whose formulas use variables
 	fieldOf map[fieldKey]int
 	sign    float64 // +1 maximize, −1 minimize
 	riskOn  bool
@@ -147,8 +148,14 @@ func CompileFast(p *Project) (*FastModel, error) {
 			}
 		}
 	}
+	for fi, f := range s.fields {
+		if f.fn != nil {
+			s.dynamic = append(s.dynamic, fi)
+		}
+	}
 	m := &FastModel{shared: s}
 	m.alloc()
+	m.resetConstants()
 	return m, m.Roll()
 }
 
@@ -228,7 +235,35 @@ func (m *FastModel) FieldIndex(n *Node, branch int, field string) (int, bool) {
 }
 
 // SetField overrides one field's value until ResetFields.
-func (m *FastModel) SetField(i int, v float64) { m.fieldVal[i], m.fieldOvr[i] = v, true }
+func (m *FastModel) SetField(i int, v float64) {
+	m.fieldVal[i], m.fieldOvr[i] = v, true
+	m.writeField(i)
+}
+
+// writeField copies a field's current value to the slot the roll-back reads.
+func (m *FastModel) writeField(fi int) {
+	f := &m.shared.fields[fi]
+	v := m.fieldVal[fi]
+	switch f.kind {
+	case 'p':
+		m.Prob[f.target] = v
+	case 'c':
+		m.Cash[f.target] = v
+	case 'y':
+		m.PayoffV[f.target] = v
+	}
+}
+
+// resetConstants writes every constant field's base value (and clears rest slots).
+func (m *FastModel) resetConstants() {
+	for fi := range m.shared.fields {
+		f := &m.shared.fields[fi]
+		if f.fn == nil && !m.fieldOvr[fi] {
+			m.fieldVal[fi] = f.base
+			m.writeField(fi)
+		}
+	}
+}
 
 // FieldValue is a field's value as of the last Roll.
 func (m *FastModel) FieldValue(i int) float64 { return m.fieldVal[i] }
@@ -238,6 +273,7 @@ func (m *FastModel) ResetFields() {
 	for i := range m.fieldOvr {
 		m.fieldOvr[i] = false
 	}
+	m.resetConstants()
 }
 
 // FastError names the place where a float roll-back found an invalid value.
@@ -259,23 +295,12 @@ func (m *FastModel) Roll() error {
 			m.varVal[i] = s.varF[i](m.varVal)
 		}
 	}
-	for fi := range s.fields {
-		f := &s.fields[fi]
-		if !m.fieldOvr[fi] && !f.rest {
-			if f.fn != nil {
-				m.fieldVal[fi] = f.fn(m.varVal)
-			} else {
-				m.fieldVal[fi] = f.base
-			}
-		}
-		v := m.fieldVal[fi]
-		switch f.kind {
-		case 'p':
-			m.Prob[f.target] = v
-		case 'c':
-			m.Cash[f.target] = v
-		case 'y':
-			m.PayoffV[f.target] = v
+	// Constant fields were written once (see resetConstants); only formulas over
+	// variables are computed again.
+	for _, fi := range s.dynamic {
+		if !m.fieldOvr[fi] {
+			m.fieldVal[fi] = s.fields[fi].fn(m.varVal)
+			m.writeField(fi)
 		}
 	}
 	var firstErr error

@@ -42,7 +42,11 @@ func DemoTitle(file string) string {
 // ---- New, Open, Save ----
 
 func (e *Editor) fileNew() {
-	e.confirmDiscard("starting a new project", func() { e.setProject(EmptyProject(), "", "Untitled") })
+	e.confirmDiscard("starting a new project", func() {
+		p := EmptyProject()
+		AppSettings().ApplyDefaults(p)
+		e.setProject(p, "", "Untitled")
+	})
 }
 
 func (e *Editor) fileNewDemo(d assets.Demo) {

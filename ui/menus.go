@@ -91,6 +91,9 @@ func (e *Editor) typedKey(k fyne.KeyName) {
 		e.addBranch()
 	case fyne.KeyEscape:
 		e.closeInPlace()
+	default:
+		// Keys without a modifier (F5 for the presentation) never reach Fyne's shortcuts.
+		HandlePlainKey(e, k)
 	}
 }
 

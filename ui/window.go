@@ -57,7 +57,14 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 	e.recoveryDir = defaultRecoveryDir(a)
 	e.view = newTreeView()
 	e.view.SetOnSelect(func(t Target) { e.setSelection(t) })
-	e.view.SetOnActivate(func(t Target) { e.setSelection(t); e.editInPlace(t) })
+	e.view.SetOnActivate(func(t Target) {
+		e.setSelection(t)
+		if t.Field == "value" { // a rolled-back value is computed, not typed: explain it
+			ShowExplain(e, t.Node)
+			return
+		}
+		e.editInPlace(t)
+	})
 	e.inspector = newInspector(e)
 	e.variables = newVariablesTable(e)
 	e.problems = newProblemsList(e)
@@ -96,6 +103,7 @@ func NewEditor(a fyne.App, win fyne.Window, p *engine.Project, path, name string
 			e.confirmDiscard("opening another project", func() { _ = e.OpenPath(path) })
 		}
 	})
+	e.initViewOptions()
 	e.setProject(p, path, name)
 	return e
 }

@@ -115,6 +115,19 @@ func engineFigures(t *testing.T, r *engine.Result) map[string]bool {
 	if r.RiskActive() {
 		set[r.Format(decimal.NewFromFloat(r.Tolerance()))] = true
 	}
+	// The simulation summary: the same run, repeated here with the report's fixed seed.
+	sim, err := analysis.Simulate(context.Background(), r.Project.Clone(), analysis.SimOptions{N: reportSimIterations, Seed: reportSimSeed, Mode: analysis.SimParameters})
+	if err == nil {
+		f := func(x float64) { set[r.Format(decimal.NewFromFloat(x))] = true }
+		for _, x := range []float64{sim.Base, sim.Value.Mean, sim.Value.SE, sim.Value.SD, sim.Value.P5, sim.Value.P50, sim.Value.P95, sim.Value.Min, sim.Value.Max} {
+			f(x)
+		}
+		for _, a := range sim.Alternatives {
+			f(a.Value.Mean)
+			f(a.Value.P5)
+			f(a.Value.P95)
+		}
+	}
 	return set
 }
 

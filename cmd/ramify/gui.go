@@ -5,19 +5,15 @@ import (
 	"io"
 
 	"fyne.io/fyne/v2"
-	"fyne.io/fyne/v2/app"
 
 	"github.com/ramify-app/ramify/assets"
 	"github.com/ramify-app/ramify/engine"
 	"github.com/ramify-app/ramify/ui"
 )
 
-// appID names the application for Fyne's preferences and storage.
-const appID = "app.ramify.editor"
-
 // openWindow opens the editor on FILE, or on the first demo project.
 func openWindow(args []string, stderr io.Writer) int {
-	a := app.NewWithID(appID)
+	a := ui.NewApp() // ID, version and icon from FyneApp.toml
 	w := a.NewWindow("Ramify")
 	var (
 		p          *engine.Project
@@ -51,10 +47,5 @@ func openWindow(args []string, stderr io.Writer) int {
 	}
 	e.StartAutosave()
 	w.ShowAndRun()
-	return exitOK
-}
-
-func printVersion(stdout io.Writer) int {
-	fmt.Fprintln(stdout, "ramify (development)")
 	return exitOK
 }
