@@ -2,6 +2,7 @@ package canvas
 
 import (
 	"errors"
+	"fmt"
 	"image/color"
 	"math"
 
@@ -141,24 +142,61 @@ func fillRect(c vg.Canvas, r vg.Rectangle, col color.Color) {
 	c.Fill(path)
 }
 
+// Diagram is a tree laid out once with the file fonts, ready to be drawn into
+// any vg.Canvas at any scale and as often as wanted (a report draws it whole,
+// or once per tile). It satisfies the report's TreeDiagram.
+type Diagram struct {
+	scene  *Scene
+	bounds Rect
+}
+
+// NewDiagram lays out p with a theme: "print" (greyscale-safe), "colour" or
+// "light", or "dark". r may be nil.
+func NewDiagram(p *engine.Project, r *engine.Result, theme string) (*Diagram, error) {
+	if p == nil || p.Root == nil {
+		return nil, errors.New("tree diagram: the project has no tree")
+	}
+	if theme == "colour" || theme == "color" {
+		theme = "light"
+	}
+	th, ok := ThemeByName(theme)
+	if !ok {
+		return nil, fmt.Errorf("tree diagram: unknown theme %q (use print, colour or dark)", theme)
+	}
+	opts := DefaultOptions()
+	opts.Theme = th
+	l := LayoutTree(p, r, FontMeasurer{}, opts)
+	return &Diagram{scene: Build(p, r, l, opts, Rect{}), bounds: l.Bounds}, nil
+}
+
+// Size is the diagram's natural size in points at scale 1.
+func (d *Diagram) Size() (w, h vg.Length) { return vg.Length(d.bounds.W), vg.Length(d.bounds.H) }
+
+// Draw draws the whole diagram scaled by k with its top-left corner at
+// topLeft (vg coordinates, y up). It uses no canvas transforms.
+func (d *Diagram) Draw(c vg.Canvas, topLeft vg.Point, k float64) error {
+	if k <= 0 || math.IsNaN(k) || math.IsInf(k, 0) {
+		return fmt.Errorf("tree diagram: scale %v must be positive", k)
+	}
+	_, isPDF := c.(*vgpdf.Canvas)
+	drawVG(c, d.scene, vgMap{vx: d.bounds.X, vy: d.bounds.Y, left: float64(topLeft.X), top: float64(topLeft.Y), k: k}, isPDF)
+	return nil
+}
+
 // DrawTree draws the tree of p (with the values of r, which may be nil) into
 // rect of any vg canvas, scaled down to fit and placed at the rect's top left.
-// The report uses it to put the tree on a page of its own PDF.
+// The report uses it (or Diagram) to put the tree on a page of its own PDF.
 func DrawTree(c vg.Canvas, rect vg.Rectangle, p *engine.Project, r *engine.Result, opts Options) error {
 	if p == nil || p.Root == nil {
 		return errors.New("draw tree: the project has no tree")
 	}
 	opts = opts.normalized()
 	l := LayoutTree(p, r, FontMeasurer{}, opts)
-	s := Build(p, r, l, opts, Rect{})
 	w, h := float64(rect.Max.X-rect.Min.X), float64(rect.Max.Y-rect.Min.Y)
 	if w <= 0 || h <= 0 || l.Bounds.W <= 0 || l.Bounds.H <= 0 {
 		return errors.New("draw tree: empty drawing area")
 	}
+	d := &Diagram{scene: Build(p, r, l, opts, Rect{}), bounds: l.Bounds}
 	k := math.Min(1, math.Min(w/l.Bounds.W, h/l.Bounds.H))
-	c.Push()
-	defer c.Pop()
-	_, isPDF := c.(*vgpdf.Canvas)
-	drawVG(c, s, vgMap{vx: l.Bounds.X, vy: l.Bounds.Y, left: float64(rect.Min.X), top: float64(rect.Max.Y), k: k}, isPDF)
-	return nil
+	return d.Draw(c, vg.Point{X: rect.Min.X, Y: rect.Max.Y}, k)
 }
