@@ -405,6 +405,11 @@ type viewRenderer struct {
 	overKey  overviewKey
 	overRect Rect // the part of the drawing the image holds
 
+	// An edit redraws the overview off the event goroutine, one image at a time;
+	// the previous image stays up until the new one is ready.
+	rasterBusy bool
+	rasterNext *rasterJob
+
 	v       *View
 	bg      *fynecanvas.Rectangle
 	objects []fyne.CanvasObject
@@ -454,15 +459,22 @@ func (r *viewRenderer) rebuild() {
 	}
 	vp := v.ViewportRect()
 	var s *Scene
-	if vp.W > 0 && vp.H > 0 && len(v.layout.Boxes) > 0 {
-		s = Build(v.project, v.result, v.layout, v.opts, vp)
-	} else {
+	overviewArea := false
+	switch {
+	case vp.W <= 0 || vp.H <= 0 || len(v.layout.Boxes) == 0:
 		s = &Scene{Theme: v.opts.Theme}
+	case r.over != nil && v.zoom == r.overKey.zoom && r.overRect.contains(vp):
+		// Still seen from afar: one scene of the overview's area serves both the
+		// image and the hit regions, instead of building the visible part twice.
+		s = Build(v.project, v.result, v.layout, v.opts, r.overRect)
+		overviewArea = true
+	default:
+		s = Build(v.project, v.result, v.layout, v.opts, vp)
 	}
 	v.scene = s
 	r.drawn = r.drawn[:0]
 	if len(s.Prims) > maxViewObjects {
-		r.overview(s, vp)
+		r.overview(s, vp, overviewArea)
 	} else {
 		for i := range s.Prims {
 			r.prim(&s.Prims[i])
@@ -483,11 +495,13 @@ type overviewKey struct {
 // overview shows the visible part as one image. The image covers the viewport
 // and half a viewport around it, and is only redrawn when the view leaves that
 // area, zooms, or the tree or options change; panning just moves it.
-func (r *viewRenderer) overview(s *Scene, vp Rect) {
+func (r *viewRenderer) overview(s *Scene, vp Rect, sceneIsArea bool) {
 	v := r.v
 	key := overviewKey{layout: v.layout, zoom: v.zoom, theme: v.opts.Theme.Name, opts: optionsKey(v.opts)}
-	inside := vp.X >= r.overRect.X && vp.Y >= r.overRect.Y && vp.X+vp.W <= r.overRect.X+r.overRect.W && vp.Y+vp.H <= r.overRect.Y+r.overRect.H
-	if r.over == nil || key != r.overKey || !inside {
+	inside := r.overRect.contains(vp)
+	switch {
+	case r.over == nil || !inside || key.zoom != r.overKey.zoom:
+		// Nothing usable on screen: draw now.
 		area := Rect{vp.X - vp.W/2, vp.Y - vp.H/2, vp.W * 2, vp.H * 2}
 		img, err := rasterScene(Build(v.project, v.result, v.layout, v.opts, area), area, v.zoom)
 		if err != nil {
@@ -502,10 +516,65 @@ func (r *viewRenderer) overview(s *Scene, vp Rect) {
 			r.over.Refresh()
 		}
 		r.overKey, r.overRect = key, area
+		r.rasterNext = nil
+	case key != r.overKey:
+		// The tree or options changed under an image that still covers the view:
+		// build the scene here (it reads the project) and rasterise it in the background.
+		r.overKey = key
+		if !sceneIsArea {
+			s = Build(v.project, v.result, v.layout, v.opts, r.overRect)
+		}
+		r.queueRaster(&rasterJob{scene: s.rasterCopy(), area: r.overRect, zoom: v.zoom, key: key})
 	}
 	r.over.Move(v.toScreen(Point{r.overRect.X, r.overRect.Y}))
 	r.over.Resize(fyne.NewSize(float32(r.overRect.W*v.zoom), float32(r.overRect.H*v.zoom)))
 	r.drawn = append(r.drawn, r.over)
+}
+
+func (a Rect) contains(b Rect) bool {
+	return b.X >= a.X && b.Y >= a.Y && b.X+b.W <= a.X+a.W && b.Y+b.H <= a.Y+a.H
+}
+
+// rasterCopy is what the background drawing needs: the primitives and theme,
+// in a scene of its own (rasterScene filters its primitives in place).
+func (s *Scene) rasterCopy() *Scene {
+	return &Scene{Theme: s.Theme, Prims: append([]Prim(nil), s.Prims...)}
+}
+
+// rasterJob is one overview image to draw from a finished scene.
+type rasterJob struct {
+	scene *Scene
+	area  Rect
+	zoom  float64
+	key   overviewKey
+}
+
+// RunInBackground starts overview drawing off the event goroutine. Tests that
+// drive the view with Fyne's test driver replace it with an inline runner,
+// because that driver runs fyne.Do on the calling goroutine.
+var RunInBackground = func(f func()) { go f() }
+
+// queueRaster draws at most one image at a time; a newer job replaces a waiting one.
+func (r *viewRenderer) queueRaster(job *rasterJob) {
+	if r.rasterBusy {
+		r.rasterNext = job
+		return
+	}
+	r.rasterBusy = true
+	RunInBackground(func() {
+		img, err := rasterScene(job.scene, job.area, job.zoom)
+		fyne.Do(func() {
+			r.rasterBusy = false
+			if err == nil && job.key == r.overKey && job.area == r.overRect && r.over != nil {
+				r.over.Image = img
+				r.over.Refresh()
+			}
+			if next := r.rasterNext; next != nil {
+				r.rasterNext = nil
+				r.queueRaster(next)
+			}
+		})
+	})
 }
 
 // optionsKey sums up the options that change the drawing.

@@ -16,6 +16,9 @@ var one = decimal.NewFromInt(1)
 // reached twice needs no map.
 var evaluationStamp atomic.Uint64
 
+// variableGeneration numbers distinct sets of variable values across projects.
+var variableGeneration atomic.Uint64
+
 // Evaluate validates the project and rolls the tree back exactly. It never fails:
 // every problem is listed in Result.Problems with its place, and the parts of the
 // tree that can be computed still are. Evaluate keeps compiled formulas and an
@@ -24,6 +27,7 @@ var evaluationStamp atomic.Uint64
 func Evaluate(p *Project) *Result {
 	r := &Result{Project: p}
 	r.Vars = evaluateVariables(p, &r.Problems)
+	r.varsGen = p.noteVariables(r.Vars)
 	if p.Root == nil {
 		r.addProblem("", -1, "root", "the project has no root node")
 		return r
@@ -248,13 +252,40 @@ func (r *Result) evalField(cache *cachedFormula, src string, n *Node, branch int
 	}
 	f, err := cache.get(src)
 	if err == nil {
+		if f.constant {
+			return f.cval, true
+		}
+		if cache.gen == r.varsGen { // same text, same variable values: same result
+			return cache.val, true
+		}
 		var v decimal.Decimal
 		if v, err = f.Eval(r.Vars); err == nil {
+			cache.val, cache.gen = v, r.varsGen
 			return v, true
 		}
 	}
 	r.nodeProblem(n, branch, field, err.Error())
 	return decimal.Zero, false
+}
+
+// noteVariables returns a number that changes whenever the evaluated variable
+// values differ from the previous evaluation's, so cached field values computed
+// under the same values can be reused.
+func (p *Project) noteVariables(vars MapEnv) uint64 {
+	same := p.varsGen != 0 && len(vars) == len(p.lastVars)
+	if same {
+		for k, v := range vars {
+			if old, ok := p.lastVars[k]; !ok || !old.Equal(v) {
+				same = false
+				break
+			}
+		}
+	}
+	if !same {
+		p.varsGen = variableGeneration.Add(1)
+		p.lastVars = vars
+	}
+	return p.varsGen
 }
 
 func (r *Result) evaluateFields() {
@@ -318,8 +349,9 @@ func (r *Result) evaluateProbabilities(n *Node) bool {
 	return ok
 }
 
-// reuseProbabilities skips the exact checks when a node's probabilities are all
-// constants whose compiled formulas are unchanged since a previous valid check.
+// reuseProbabilities skips the exact checks when a node's probability formulas
+// are unchanged since a previous valid check and so are the variable values
+// (or the formulas use none).
 func (r *Result) reuseProbabilities(n *Node) bool {
 	c := &n.probCheck
 	if !c.valid || len(c.formulas) != len(n.Branches) {
@@ -333,7 +365,7 @@ func (r *Result) reuseProbabilities(n *Node) bool {
 			continue
 		}
 		f, err := b.probF.get(b.Probability)
-		if err != nil || f != c.formulas[bi] || !f.constant {
+		if err != nil || f != c.formulas[bi] || (!f.constant && c.gen != r.varsGen) {
 			return false
 		}
 	}
@@ -354,12 +386,10 @@ func (r *Result) rememberProbabilities(n *Node, ok bool) {
 			continue
 		}
 		f, _ := b.probF.get(b.Probability)
-		if !f.constant {
-			return
-		}
 		c.formulas = append(c.formulas, f)
 	}
 	c.probs = append(c.probs[:0], r.prob[n.index]...)
+	c.gen = r.varsGen
 	c.valid = true
 }
 

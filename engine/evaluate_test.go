@@ -294,3 +294,28 @@ func TestRiskAttitudeCertaintyEquivalent(t *testing.T) {
 	assert.Equal(t, "750", r.ValueOf(p.FindNode("g")).String())
 	assert.Equal(t, 1, r.Choice(p.Root), "a risk-averse decision maker takes the sure 600 over a CE of about %.0f", want)
 }
+
+// Re-evaluation reuses cached field values only while formulas and variable values are unchanged.
+func TestReEvaluationFollowsEveryChange(t *testing.T) {
+	p := &engine.Project{Variables: []*engine.Variable{{Name: "q", Value: "0.4"}, {Name: "gain", Value: "100"}},
+		Root: &engine.Node{ID: "c", Kind: engine.Chance, Branches: []*engine.Branch{
+			br("Yes", "q", end("y", "gain")), br("No", "rest", end("n", "gain / 4")),
+		}}}
+	steps := []struct {
+		change func()
+		want   string
+	}{
+		{func() {}, "55"}, // 0.4·100 + 0.6·25
+		{func() { p.Variables[0].Value = "0.5" }, "62.5"}, // 0.5·100 + 0.5·25
+		{func() { p.Variables[1].Value = "40" }, "25"},    // 0.5·40 + 0.5·10
+		{func() { p.Root.Branches[0].Probability = "q / 2" }, "17.5"},
+		{func() { p.Root.Branches[1].To.Payoff = "0" }, "10"},
+		{func() {}, "10"},
+	}
+	for i, s := range steps {
+		s.change()
+		r := engine.Evaluate(p)
+		require.True(t, r.Valid(), "%v", r.Problems)
+		assert.Equal(t, s.want, r.ValueOf(p.Root).String(), "step %d", i)
+	}
+}

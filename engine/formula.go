@@ -737,11 +737,13 @@ type cachedFormula struct {
 	f   *Formula
 	err error
 	set bool
+	val decimal.Decimal // last value, valid for variable generation gen (0: none)
+	gen uint64
 }
 
 func (c *cachedFormula) get(src string) (*Formula, error) {
 	if !c.set || c.src != src {
-		c.src, c.set = src, true
+		c.src, c.set, c.gen = src, true, 0
 		c.f, c.err = ParseFormula(src)
 	}
 	return c.f, c.err

@@ -34,6 +34,8 @@ type Project struct {
 
 	sizeHint int              // node count at the last evaluation, to size slices
 	idCache  map[string]*Node // ids of the last evaluation, when all were unique
+	varsGen  uint64           // see noteVariables
+	lastVars MapEnv
 }
 
 // RiskAttitude is the project's stated attitude to risk.
@@ -200,7 +202,7 @@ func (o Objective) Better(a, b float64) bool {
 // so the copy can be evaluated on another goroutine.
 func (p *Project) Clone() *Project {
 	c := *p
-	c.idCache, c.sizeHint = nil, 0
+	c.idCache, c.sizeHint, c.varsGen, c.lastVars = nil, 0, 0, nil
 	c.Variables = make([]*Variable, len(p.Variables))
 	for i, v := range p.Variables {
 		c.Variables[i] = v.Clone()
@@ -254,6 +256,7 @@ func (n *Node) Clone() *Node {
 // probabilityCheck remembers a chance node's last valid constant probabilities.
 type probabilityCheck struct {
 	valid    bool
+	gen      uint64     // variable generation the probabilities were computed under
 	formulas []*Formula // nil for the rest branch
 	probs    []Decimal
 }

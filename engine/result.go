@@ -30,6 +30,7 @@ type Result struct {
 	parent       []int32 // parent index, -1 at the root
 	parentBranch []int32
 	forwardOnce  sync.Once
+	varsGen      uint64
 	riskOn       bool
 	tolerance    float64
 }

@@ -8,6 +8,7 @@ import (
 	"fyne.io/fyne/v2/test"
 	"github.com/stretchr/testify/require"
 
+	"github.com/ramify-app/ramify/canvas"
 	"github.com/ramify-app/ramify/engine"
 )
 
@@ -90,6 +91,9 @@ func benchEdit(b *testing.B, focus bool) {
 	if focus {
 		e.view.FocusNode(deep)
 	}
+	// As in the app: a whole-tree overview image is redrawn off the event goroutine.
+	canvas.RunInBackground = func(f func()) { go f() }
+	defer func() { canvas.RunInBackground = func(f func()) { f() } }()
 	values := []string{"0.35", "0.3"}
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {

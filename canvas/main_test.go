@@ -1,0 +1,11 @@
+package canvas
+
+import (
+	"os"
+	"testing"
+)
+
+func TestMain(m *testing.M) {
+	RunInBackground = func(f func()) { f() }
+	os.Exit(m.Run())
+}
