@@ -92,9 +92,11 @@ func (v *View) Options() Options { return v.opts }
 
 // Select highlights t and scrolls it into view (without calling OnSelect).
 func (v *View) Select(t Target) {
+	changed := t != v.opts.Selected
 	v.opts.Selected = t
-	v.ensureVisible(t)
-	v.Refresh()
+	if moved := v.ensureVisible(t); changed || moved {
+		v.Refresh()
+	}
 }
 
 // Selected returns the highlighted target.
@@ -225,11 +227,11 @@ func (v *View) targetRect(t Target) (Rect, bool) {
 }
 
 // ensureVisible pans the least distance that brings t's box into view.
-func (v *View) ensureVisible(t Target) {
+func (v *View) ensureVisible(t Target) bool {
 	r, ok := v.targetRect(t)
 	s := v.Size()
 	if !ok || s.Width <= 0 {
-		return
+		return false
 	}
 	const pad = 24
 	tl, br := v.toScreen(Point{r.X, r.Y}), v.toScreen(Point{r.X + r.W, r.Y + r.H})
@@ -249,7 +251,9 @@ func (v *View) ensureVisible(t Target) {
 	if dx != 0 || dy != 0 {
 		v.offset = v.offset.Add(fyne.NewPos(dx, dy))
 		v.autoFit = false
+		return true
 	}
+	return false
 }
 
 // Tapped selects what was tapped and takes the keyboard focus for the zoom keys.
