@@ -1,13 +1,17 @@
 package main
 
 import (
+	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"strings"
 
+	"gonum.org/v1/plot"
+
 	"github.com/ramify-app/ramify/engine"
+	"github.com/ramify-app/ramify/engine/analysis"
 )
 
 // newFlags makes a flag set that reports usage errors to stderr and returns them
@@ -65,6 +69,59 @@ func requireValid(path string, r *engine.Result, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "  "+pr.Msg)
 	}
 	return exitInvalid
+}
+
+// loadValid loads and evaluates a file and requires it to have no problems; on
+// failure it prints the message or the problems and returns the exit code to use.
+func loadValid(path string, stderr io.Writer) (*engine.Project, *engine.Result, int) {
+	p, r, code := loadProject(path, stderr)
+	if code == exitOK {
+		code = requireValid(path, r, stderr)
+	}
+	return p, r, code
+}
+
+// jsonOrCSV refuses --json together with --csv.
+func jsonOrCSV(cmd string, asJSON, asCSV bool, stderr io.Writer) int {
+	if asJSON && asCSV {
+		fmt.Fprintf(stderr, "%s: choose one of --json and --csv\n", cmd)
+		return exitUsage
+	}
+	return exitOK
+}
+
+// failOn prints err as "cmd: err" and returns exitInvalid; with no error it
+// returns exitOK.
+func failOn(cmd string, err error, stderr io.Writer) int {
+	if err != nil {
+		fmt.Fprintf(stderr, "%s: %s\n", cmd, err)
+		return exitInvalid
+	}
+	return exitOK
+}
+
+// writeJSON prints v on stdout as indented JSON.
+func writeJSON(cmd string, stdout, stderr io.Writer, v any) int {
+	enc := json.NewEncoder(stdout)
+	enc.SetIndent("", "  ")
+	return failOn(cmd, enc.Encode(v), stderr)
+}
+
+// writeChartFile builds a sensitivity chart and writes it to path by extension;
+// with no path it does nothing.
+func writeChartFile(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
+	if path == "" {
+		return exitOK
+	}
+	pl, err := build()
+	if err == nil {
+		err = analysis.SaveSensitivityChart(pl, path)
+	}
+	if err != nil {
+		fmt.Fprintf(stderr, "%s: chart: %s\n", cmd, err)
+		return exitInvalid
+	}
+	return exitOK
 }
 
 func oneOf(value string, allowed ...string) bool {

@@ -35,9 +35,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ramify regions: name both inputs with --x and --y")
 		return exitUsage
 	}
-	if *asJSON && *asCSV {
-		fmt.Fprintln(stderr, "ramify regions: choose one of --json and --csv")
-		return exitUsage
+	if code := jsonOrCSV(fs.Name(), *asJSON, *asCSV, stderr); code != exitOK {
+		return code
 	}
 	var ins [2]analysis.Input
 	for i, text := range []string{*x, *y} {
@@ -48,11 +47,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		}
 		ins[i] = in
 	}
-	p, r, code := loadProject(path, stderr)
+	p, r, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	xr, code := sensRange("ramify regions (x)", *xFrom, *xTo, r, stderr)
@@ -69,20 +65,14 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify regions: %s: %s\n", path, err)
 		return exitInvalid
 	}
-	if *out != "" {
-		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-			return code
-		}
+	if code := writeChartFile(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+		return code
 	}
 	switch {
 	case *asJSON:
-		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
+		return writeJSON(fs.Name(), stdout, stderr, res.Doc())
 	case *asCSV:
-		if err := res.WriteCSV(stdout); err != nil {
-			fmt.Fprintln(stderr, "ramify regions:", err)
-			return exitInvalid
-		}
-		return exitOK
+		return failOn(fs.Name(), res.WriteCSV(stdout), stderr)
 	}
 	printRegions(stdout, res)
 	return exitOK

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"strings"
@@ -37,15 +36,11 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	if code != exitOK {
 		return code
 	}
-	if *asJSON && *asCSV {
-		fmt.Fprintln(stderr, "ramify sweep: choose one of --json and --csv")
-		return exitUsage
-	}
-	p, r, code := loadProject(path, stderr)
-	if code != exitOK {
+	if code := jsonOrCSV(fs.Name(), *asJSON, *asCSV, stderr); code != exitOK {
 		return code
 	}
-	if code := requireValid(path, r, stderr); code != exitOK {
+	p, r, code := loadValid(path, stderr)
+	if code != exitOK {
 		return code
 	}
 	rng, code := sensRange(fs.Name(), *from, *to, r, stderr)
@@ -57,20 +52,14 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify sweep: %s: %s\n", path, err)
 		return exitInvalid
 	}
-	if *out != "" {
-		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-			return code
-		}
+	if code := writeChartFile(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+		return code
 	}
 	switch {
 	case *asJSON:
-		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
+		return writeJSON(fs.Name(), stdout, stderr, res.Doc())
 	case *asCSV:
-		if err := res.WriteCSV(stdout); err != nil {
-			fmt.Fprintln(stderr, "ramify sweep:", err)
-			return exitInvalid
-		}
-		return exitOK
+		return failOn(fs.Name(), res.WriteCSV(stdout), stderr)
 	}
 	printSweep(stdout, res)
 	return exitOK
@@ -163,14 +152,4 @@ func sensRange(cmd, from, to string, r *engine.Result, stderr io.Writer) (*analy
 		}
 	}
 	return &analysis.Range{Low: ends[0], High: ends[1]}, exitOK
-}
-
-func printSensJSON(cmd string, stdout, stderr io.Writer, doc any) int {
-	enc := json.NewEncoder(stdout)
-	enc.SetIndent("", "  ")
-	if err := enc.Encode(doc); err != nil {
-		fmt.Fprintf(stderr, "%s: %s\n", cmd, err)
-		return exitInvalid
-	}
-	return exitOK
 }

@@ -6,8 +6,6 @@ import (
 	"io"
 	"text/tabwriter"
 
-	"gonum.org/v1/plot"
-
 	"github.com/ramify-app/ramify/engine"
 	"github.com/ramify-app/ramify/engine/analysis"
 )
@@ -25,15 +23,11 @@ func runTornado(args []string, stdout, stderr io.Writer) int {
 	if !ok {
 		return exitUsage
 	}
-	if *asJSON && *asCSV {
-		fmt.Fprintln(stderr, "ramify tornado: choose one of --json and --csv")
-		return exitUsage
-	}
-	p, r, code := loadProject(path, stderr)
-	if code != exitOK {
+	if code := jsonOrCSV(fs.Name(), *asJSON, *asCSV, stderr); code != exitOK {
 		return code
 	}
-	if code := requireValid(path, r, stderr); code != exitOK {
+	p, r, code := loadValid(path, stderr)
+	if code != exitOK {
 		return code
 	}
 	res, err := analysis.Tornado(context.Background(), p, r)
@@ -48,20 +42,14 @@ func runTornado(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify tornado: %s: no variable has both a low and a high; give ranges in the variables table\n", path)
 		return exitInvalid
 	}
-	if *out != "" {
-		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-			return code
-		}
+	if code := writeChartFile(fs.Name(), *out, res.Chart, stderr); code != exitOK {
+		return code
 	}
 	switch {
 	case *asJSON:
-		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
+		return writeJSON(fs.Name(), stdout, stderr, res.Doc())
 	case *asCSV:
-		if err := res.WriteCSV(stdout); err != nil {
-			fmt.Fprintln(stderr, "ramify tornado:", err)
-			return exitInvalid
-		}
-		return exitOK
+		return failOn(fs.Name(), res.WriteCSV(stdout), stderr)
 	}
 	printTornado(stdout, res)
 	return exitOK
@@ -87,17 +75,4 @@ func printTornado(w io.Writer, t *analysis.TornadoResult) {
 	fmt.Fprintln(w, "(flips: the variable's range changes the recommendation; every figure is exact)")
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, engine.Caution)
-}
-
-// saveChart builds a chart and writes it by extension.
-func saveSensChart(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
-	pl, err := build()
-	if err == nil {
-		err = analysis.SaveSensitivityChart(pl, path)
-	}
-	if err != nil {
-		fmt.Fprintf(stderr, "%s: chart: %s\n", cmd, err)
-		return exitInvalid
-	}
-	return exitOK
 }
