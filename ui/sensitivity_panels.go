@@ -33,7 +33,7 @@ type sweepPanel struct {
 	decIDs   []string
 	result   *analysis.SweepResult
 	content  fyne.CanvasObject
-	running  context.CancelFunc
+	running  latestRun
 	// background runs work off the event goroutine; tests run it inline, as the
 	// Fyne test driver's fyne.Do runs on the calling goroutine.
 	background func(func())
@@ -118,36 +118,12 @@ func (sp *sweepPanel) Run() {
 	if i := sp.decision.SelectedIndex(); i >= 0 && i < len(sp.decIDs) {
 		opts.Decision = sp.decIDs[i]
 	}
-	if sp.running != nil {
-		sp.running()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	sp.running = cancel
 	clone := sp.h.Project().Clone()
 	sp.status.SetText("Working…")
-	sp.background(func() {
+	sp.running.start(sp.background, func(ctx context.Context) func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Sweep(ctx, clone, r, in, opts)
-		var show func()
-		if err == nil {
-			pl, cerr := res.Chart()
-			if cerr != nil {
-				err = cerr
-			} else {
-				img := analysis.SensitivityChartImage(pl, chartPxW, chartPxH)
-				show = func() { sp.show(res); sp.chart.show(pl, img) }
-			}
-		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return
-			}
-			if err != nil {
-				sp.status.SetText(err.Error())
-				return
-			}
-			show()
-		})
+		return sensHandBack(err, res.Chart, sp.chart, sp.status, func() { sp.show(res) })
 	})
 }
 
@@ -199,7 +175,7 @@ type tornadoPanel struct {
 	table   *textTable
 	result  *analysis.TornadoResult
 	content fyne.CanvasObject
-	running context.CancelFunc
+	running latestRun
 	// background runs work off the event goroutine (inline in tests).
 	background func(func())
 }
@@ -235,39 +211,15 @@ func (tp *tornadoPanel) Update(*engine.Result) {
 }
 
 func (tp *tornadoPanel) Run() {
-	if tp.running != nil {
-		tp.running()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	tp.running = cancel
 	clone := tp.h.Project().Clone()
 	tp.status.SetText("Working…")
-	tp.background(func() {
+	tp.running.start(tp.background, func(ctx context.Context) func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Tornado(ctx, clone, r)
-		var show func()
 		if err == nil && len(res.Bars) == 0 {
 			err = fmt.Errorf("no variable has both a low and a high; give ranges in the Variables table")
 		}
-		if err == nil {
-			pl, cerr := res.Chart()
-			if cerr != nil {
-				err = cerr
-			} else {
-				img := analysis.SensitivityChartImage(pl, chartPxW, chartPxH)
-				show = func() { tp.show(res); tp.chart.show(pl, img) }
-			}
-		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return
-			}
-			if err != nil {
-				tp.status.SetText(err.Error())
-				return
-			}
-			show()
-		})
+		return sensHandBack(err, res.Chart, tp.chart, tp.status, func() { tp.show(res) })
 	})
 }
 
@@ -310,7 +262,7 @@ type regionsPanel struct {
 	decIDs     []string
 	result     *analysis.RegionMap
 	content    fyne.CanvasObject
-	running    context.CancelFunc
+	running    latestRun
 	// background runs work off the event goroutine (inline in tests).
 	background func(func())
 }
@@ -389,10 +341,7 @@ func (rp *regionsPanel) refreshChoices() {
 
 // Cancel stops a running map.
 func (rp *regionsPanel) Cancel() {
-	if rp.running != nil {
-		rp.running()
-		rp.running = nil
-	}
+	rp.running.stop()
 	rp.cancel.Disable()
 	rp.run.Enable()
 	rp.status.SetText("Cancelled.")
@@ -420,53 +369,31 @@ func (rp *regionsPanel) Run() {
 		rp.status.SetText(fmt.Sprintf("Points per side: %q is not a whole number of at least 2.", rp.steps.Text))
 		return
 	}
-	if rp.running != nil {
-		rp.running()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	rp.running = cancel
 	opts := analysis.RegionOptions{XRange: xr, YRange: yr, Steps: steps}
 	if i := rp.decision.SelectedIndex(); i >= 0 && i < len(rp.decIDs) {
 		opts.Decision = rp.decIDs[i]
-	}
-	opts.Progress = func(done, total int) {
-		fyne.Do(func() {
-			if ctx.Err() == nil {
-				rp.progress.SetValue(float64(done) / float64(total))
-			}
-		})
 	}
 	clone := rp.h.Project().Clone()
 	rp.progress.SetValue(0)
 	rp.run.Disable()
 	rp.cancel.Enable()
 	rp.status.SetText("Working…")
-	rp.background(func() {
+	rp.running.start(rp.background, func(ctx context.Context) func() {
+		opts.Progress = func(done, total int) {
+			fyne.Do(func() {
+				if ctx.Err() == nil {
+					rp.progress.SetValue(float64(done) / float64(total))
+				}
+			})
+		}
 		r := engine.Evaluate(clone)
 		res, err := analysis.Regions(ctx, clone, r, x, y, opts)
-		var show func()
-		if err == nil {
-			pl, cerr := res.Chart()
-			if cerr != nil {
-				err = cerr
-			} else {
-				img := analysis.SensitivityChartImage(pl, chartPxW, chartPxH)
-				show = func() { rp.show(res); rp.chart.show(pl, img) }
-			}
-		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return // cancelled or replaced by a newer run
-			}
-			rp.running = nil
+		show := sensHandBack(err, res.Chart, rp.chart, rp.status, func() { rp.show(res) })
+		return func() {
 			rp.run.Enable()
 			rp.cancel.Disable()
-			if err != nil {
-				rp.status.SetText(err.Error())
-				return
-			}
 			show()
-		})
+		}
 	})
 }
 
