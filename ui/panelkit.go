@@ -5,6 +5,7 @@ import (
 	"image"
 
 	"fyne.io/fyne/v2"
+	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
 	"gonum.org/v1/plot"
 
@@ -65,4 +66,25 @@ func sensHandBack(err error, chart func() (*plot.Plot, error), box *chartBox, st
 		show()
 		box.show(pl, img)
 	}
+}
+
+// askPathAndSave asks for a file name and hands its local path to save. The file
+// the dialog creates is closed at once: the writers replace it atomically. A
+// failure of the dialog or of save is shown under title.
+func askPathAndSave(h Host, title, name string, save func(path string) error) {
+	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
+		if err != nil || w == nil {
+			if err != nil {
+				h.ShowError(title, err)
+			}
+			return
+		}
+		path := w.URI().Path()
+		w.Close()
+		if err := save(path); err != nil {
+			h.ShowError(title, err)
+		}
+	}, h.Window())
+	d.SetFileName(name)
+	d.Show()
 }
