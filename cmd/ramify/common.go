@@ -81,15 +81,6 @@ func loadValid(path string, stderr io.Writer) (*engine.Project, *engine.Result, 
 	return p, r, code
 }
 
-// jsonOrCSV refuses --json together with --csv.
-func jsonOrCSV(cmd string, asJSON, asCSV bool, stderr io.Writer) int {
-	if asJSON && asCSV {
-		fmt.Fprintf(stderr, "%s: choose one of --json and --csv\n", cmd)
-		return exitUsage
-	}
-	return exitOK
-}
-
 // failOn prints err as "cmd: err" and returns exitInvalid; with no error it
 // returns exitOK.
 func failOn(cmd string, err error, stderr io.Writer) int {
@@ -107,20 +98,57 @@ func writeJSON(cmd string, stdout, stderr io.Writer, v any) int {
 	return failOn(cmd, enc.Encode(v), stderr)
 }
 
-// writeChartFile builds a sensitivity chart and writes it to path by extension;
-// with no path it does nothing.
-func writeChartFile(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
-	if path == "" {
-		return exitOK
+// sensOutputs are the output flags of the sensitivity subcommands: --json,
+// --csv and -o for the chart.
+type sensOutputs struct {
+	asJSON, asCSV *bool
+	chart         *string
+}
+
+// sensOutputFlags adds --json, --csv and -o to fs with the given help texts.
+func sensOutputFlags(fs *flag.FlagSet, jsonHelp, csvHelp, chartHelp string) *sensOutputs {
+	return &sensOutputs{
+		asJSON: fs.Bool("json", false, jsonHelp),
+		asCSV:  fs.Bool("csv", false, csvHelp),
+		chart:  fs.String("o", "", chartHelp),
 	}
-	pl, err := build()
-	if err == nil {
-		err = analysis.SaveSensitivityChart(pl, path)
+}
+
+// check refuses --json together with --csv.
+func (o *sensOutputs) check(cmd string, stderr io.Writer) int {
+	if *o.asJSON && *o.asCSV {
+		fmt.Fprintf(stderr, "%s: choose one of --json and --csv\n", cmd)
+		return exitUsage
 	}
-	if err != nil {
-		fmt.Fprintf(stderr, "%s: chart: %s\n", cmd, err)
-		return exitInvalid
+	return exitOK
+}
+
+// sensResult is what every sensitivity result offers its outputs.
+type sensResult interface {
+	Chart() (*plot.Plot, error)
+	WriteCSV(w io.Writer) error
+}
+
+// write puts a result where the flags ask: the chart to the -o file when one is
+// named, then JSON (doc), CSV or the text report (text) on stdout.
+func (o *sensOutputs) write(cmd string, res sensResult, doc func() any, text func(io.Writer), stdout, stderr io.Writer) int {
+	if *o.chart != "" {
+		pl, err := res.Chart()
+		if err == nil {
+			err = analysis.SaveSensitivityChart(pl, *o.chart)
+		}
+		if err != nil {
+			fmt.Fprintf(stderr, "%s: chart: %s\n", cmd, err)
+			return exitInvalid
+		}
 	}
+	switch {
+	case *o.asJSON:
+		return writeJSON(cmd, stdout, stderr, doc())
+	case *o.asCSV:
+		return failOn(cmd, res.WriteCSV(stdout), stderr)
+	}
+	text(stdout)
 	return exitOK
 }
 

@@ -24,9 +24,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 	yTo := fs.String("y-to", "", "high end of y's range")
 	steps := fs.Int("steps", analysis.DefaultGrid, "points along each axis")
 	node := fs.String("node", "", "id of the decision whose alternatives are compared (default: the root)")
-	asJSON := fs.Bool("json", false, "print one JSON object")
-	asCSV := fs.Bool("csv", false, "print the grid as CSV")
-	out := fs.String("o", "", "write the map to this file (.png, .svg or .pdf)")
+	out := sensOutputFlags(fs, "print one JSON object",
+		"print the grid as CSV", "write the map to this file (.png, .svg or .pdf)")
 	path, ok := parseArgs(fs, args, stderr)
 	if !ok {
 		return exitUsage
@@ -35,7 +34,7 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ramify regions: name both inputs with --x and --y")
 		return exitUsage
 	}
-	if code := jsonOrCSV(fs.Name(), *asJSON, *asCSV, stderr); code != exitOK {
+	if code := out.check(fs.Name(), stderr); code != exitOK {
 		return code
 	}
 	var ins [2]analysis.Input
@@ -65,17 +64,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify regions: %s: %s\n", path, err)
 		return exitInvalid
 	}
-	if code := writeChartFile(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-		return code
-	}
-	switch {
-	case *asJSON:
-		return writeJSON(fs.Name(), stdout, stderr, res.Doc())
-	case *asCSV:
-		return failOn(fs.Name(), res.WriteCSV(stdout), stderr)
-	}
-	printRegions(stdout, res)
-	return exitOK
+	return out.write(fs.Name(), res, func() any { return res.Doc() },
+		func(w io.Writer) { printRegions(w, res) }, stdout, stderr)
 }
 
 func printRegions(w io.Writer, rm *analysis.RegionMap) {

@@ -25,9 +25,8 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	to := fs.String("to", "", "high end of the range")
 	steps := fs.Int("steps", analysis.DefaultSteps, "intervals across the range")
 	node := fs.String("node", "", "id of the decision whose alternatives are compared (default: the root)")
-	asJSON := fs.Bool("json", false, "print one JSON object (break-evens as exact decimal strings)")
-	asCSV := fs.Bool("csv", false, "print the points as CSV")
-	out := fs.String("o", "", "write the chart to this file (.png, .svg or .pdf)")
+	out := sensOutputFlags(fs, "print one JSON object (break-evens as exact decimal strings)",
+		"print the points as CSV", "write the chart to this file (.png, .svg or .pdf)")
 	path, ok := parseArgs(fs, args, stderr)
 	if !ok {
 		return exitUsage
@@ -36,7 +35,7 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	if code != exitOK {
 		return code
 	}
-	if code := jsonOrCSV(fs.Name(), *asJSON, *asCSV, stderr); code != exitOK {
+	if code := out.check(fs.Name(), stderr); code != exitOK {
 		return code
 	}
 	p, r, code := loadValid(path, stderr)
@@ -52,17 +51,8 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify sweep: %s: %s\n", path, err)
 		return exitInvalid
 	}
-	if code := writeChartFile(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-		return code
-	}
-	switch {
-	case *asJSON:
-		return writeJSON(fs.Name(), stdout, stderr, res.Doc())
-	case *asCSV:
-		return failOn(fs.Name(), res.WriteCSV(stdout), stderr)
-	}
-	printSweep(stdout, res)
-	return exitOK
+	return out.write(fs.Name(), res, func() any { return res.Doc() },
+		func(w io.Writer) { printSweep(w, res) }, stdout, stderr)
 }
 
 func printSweep(w io.Writer, s *analysis.SweepResult) {

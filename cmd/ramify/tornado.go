@@ -16,14 +16,13 @@ func init() {
 
 func runTornado(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("tornado", stderr)
-	asJSON := fs.Bool("json", false, "print one JSON object (exact decimal strings)")
-	asCSV := fs.Bool("csv", false, "print the table as CSV")
-	out := fs.String("o", "", "write the chart to this file (.png, .svg or .pdf)")
+	out := sensOutputFlags(fs, "print one JSON object (exact decimal strings)",
+		"print the table as CSV", "write the chart to this file (.png, .svg or .pdf)")
 	path, ok := parseArgs(fs, args, stderr)
 	if !ok {
 		return exitUsage
 	}
-	if code := jsonOrCSV(fs.Name(), *asJSON, *asCSV, stderr); code != exitOK {
+	if code := out.check(fs.Name(), stderr); code != exitOK {
 		return code
 	}
 	p, r, code := loadValid(path, stderr)
@@ -42,17 +41,8 @@ func runTornado(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify tornado: %s: no variable has both a low and a high; give ranges in the variables table\n", path)
 		return exitInvalid
 	}
-	if code := writeChartFile(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-		return code
-	}
-	switch {
-	case *asJSON:
-		return writeJSON(fs.Name(), stdout, stderr, res.Doc())
-	case *asCSV:
-		return failOn(fs.Name(), res.WriteCSV(stdout), stderr)
-	}
-	printTornado(stdout, res)
-	return exitOK
+	return out.write(fs.Name(), res, func() any { return res.Doc() },
+		func(w io.Writer) { printTornado(w, res) }, stdout, stderr)
 }
 
 func printTornado(w io.Writer, t *analysis.TornadoResult) {
