@@ -69,22 +69,11 @@ func Regions(ctx context.Context, p *engine.Project, r *engine.Result, x, y Inpu
 	if x.IsVariable() && y.IsVariable() && x.Variable == y.Variable {
 		return nil, fmt.Errorf("the two inputs are both variable %q", x.Variable)
 	}
-	dec, err := decisionNode(p, o.Decision)
+	dec, m, binds, err := compileBound(p, o.Decision, sx, sy)
 	if err != nil {
 		return nil, err
 	}
-	m, err := engine.CompileFast(p)
-	if err != nil {
-		return nil, err
-	}
-	bx, err := sx.bindFast(m, p)
-	if err != nil {
-		return nil, err
-	}
-	by, err := sy.bindFast(m, p)
-	if err != nil {
-		return nil, err
-	}
+	bx, by := binds[0], binds[1]
 	res := &RegionMap{X: sx, Y: sy, XName: sx.Name(p), YName: sy.Name(p),
 		Xs: gridPoints(sx.Low, sx.High, steps-1), Ys: gridPoints(sy.Low, sy.High, steps-1),
 		Decision: dec, Alternatives: alternatives(dec), BaseBest: r.Choice(dec), ValueWord: r.ValueWord(), Unit: p.Currency}

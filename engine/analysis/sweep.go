@@ -84,6 +84,26 @@ func gridPoints(low, high decimal.Decimal, steps int) []decimal.Decimal {
 	return out
 }
 
+// compileBound finds the decision whose alternatives are compared (default: the
+// root), compiles p for the float evaluator and binds each setting's input to it.
+func compileBound(p *engine.Project, decisionID string, settings ...*Setting) (*engine.Node, *engine.FastModel, []fastInput, error) {
+	dec, err := decisionNode(p, decisionID)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	m, err := engine.CompileFast(p)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	binds := make([]fastInput, len(settings))
+	for i, s := range settings {
+		if binds[i], err = s.bindFast(m, p); err != nil {
+			return nil, nil, nil, err
+		}
+	}
+	return dec, m, binds, nil
+}
+
 func checkSteps(steps int) (int, error) {
 	if steps == 0 {
 		return DefaultSteps, nil
@@ -106,18 +126,11 @@ func Sweep(ctx context.Context, p *engine.Project, r *engine.Result, in Input, o
 	if err != nil {
 		return nil, err
 	}
-	dec, err := decisionNode(p, o.Decision)
+	dec, m, binds, err := compileBound(p, o.Decision, s)
 	if err != nil {
 		return nil, err
 	}
-	m, err := engine.CompileFast(p)
-	if err != nil {
-		return nil, err
-	}
-	bind, err := s.bindFast(m, p)
-	if err != nil {
-		return nil, err
-	}
+	bind := binds[0]
 	res := &SweepResult{Setting: s, InputName: s.Name(p), Decision: dec, Alternatives: alternatives(dec),
 		X: gridPoints(s.Low, s.High, steps), BaseBest: r.Choice(dec), ValueWord: r.ValueWord(),
 		Unit: p.Currency, Decimals: p.Decimals}
