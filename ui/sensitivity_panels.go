@@ -79,22 +79,8 @@ func (sp *sweepPanel) Update(*engine.Result) {
 func (sp *sweepPanel) refreshChoices() {
 	p := sp.h.Project()
 	sp.choices = inputChoices(p, true)
-	keep := sp.input.Selected
-	sp.input.Options = choiceLabels(sp.choices)
-	if _, ok := findChoice(sp.choices, keep); !ok {
-		sp.input.ClearSelected()
-	}
-	sp.input.Refresh()
-	labels, ids := decisionChoices(p)
-	keepDec := sp.decision.SelectedIndex()
-	sp.decision.Options, sp.decIDs = labels, ids
-	if keepDec < 0 || keepDec >= len(ids) {
-		keepDec = 0
-	}
-	if len(ids) > 0 {
-		sp.decision.SetSelectedIndex(keepDec)
-	}
-	sp.decision.Refresh()
+	refreshInputSelect(sp.input, sp.choices)
+	sp.decIDs = refreshDecisionSelect(sp.decision, p)
 }
 
 // Run starts the sweep on a clone, off the event goroutine.
@@ -115,9 +101,7 @@ func (sp *sweepPanel) Run() {
 		return
 	}
 	opts := analysis.SweepOptions{Range: rng, Steps: steps}
-	if i := sp.decision.SelectedIndex(); i >= 0 && i < len(sp.decIDs) {
-		opts.Decision = sp.decIDs[i]
-	}
+	opts.Decision = selectedID(sp.decision, sp.decIDs)
 	clone := sp.h.Project().Clone()
 	sp.status.SetText("Working…")
 	sp.running.start(sp.background, func(ctx context.Context) func() {
@@ -320,23 +304,9 @@ func (rp *regionsPanel) refreshChoices() {
 	p := rp.h.Project()
 	rp.choices = inputChoices(p, true)
 	for _, s := range []*widget.Select{rp.x, rp.y} {
-		keep := s.Selected
-		s.Options = choiceLabels(rp.choices)
-		if _, ok := findChoice(rp.choices, keep); !ok {
-			s.ClearSelected()
-		}
-		s.Refresh()
+		refreshInputSelect(s, rp.choices)
 	}
-	labels, ids := decisionChoices(p)
-	keep := rp.decision.SelectedIndex()
-	rp.decision.Options, rp.decIDs = labels, ids
-	if keep < 0 || keep >= len(ids) {
-		keep = 0
-	}
-	if len(ids) > 0 {
-		rp.decision.SetSelectedIndex(keep)
-	}
-	rp.decision.Refresh()
+	rp.decIDs = refreshDecisionSelect(rp.decision, p)
 }
 
 // Cancel stops a running map.
@@ -370,9 +340,7 @@ func (rp *regionsPanel) Run() {
 		return
 	}
 	opts := analysis.RegionOptions{XRange: xr, YRange: yr, Steps: steps}
-	if i := rp.decision.SelectedIndex(); i >= 0 && i < len(rp.decIDs) {
-		opts.Decision = rp.decIDs[i]
-	}
+	opts.Decision = selectedID(rp.decision, rp.decIDs)
 	clone := rp.h.Project().Clone()
 	rp.progress.SetValue(0)
 	rp.run.Disable()
@@ -408,6 +376,41 @@ func (rp *regionsPanel) show(rm *analysis.RegionMap) {
 		rows = append(rows, []string{rm.Alternatives[i], strconv.Itoa(c), fmt.Sprintf("%.1f%%", 100*float64(c)/float64(total))})
 	}
 	rp.table.set(rows)
+}
+
+// refreshInputSelect refills an input select from choices, keeping its
+// selection while that input still exists.
+func refreshInputSelect(s *widget.Select, choices []inputChoice) {
+	keep := s.Selected
+	s.Options = choiceLabels(choices)
+	if _, ok := findChoice(choices, keep); !ok {
+		s.ClearSelected()
+	}
+	s.Refresh()
+}
+
+// refreshDecisionSelect refills a decision select from p, keeping the chosen
+// place in the list (else the first), and returns the decisions' ids in order.
+func refreshDecisionSelect(s *widget.Select, p *engine.Project) []string {
+	labels, ids := decisionChoices(p)
+	keep := s.SelectedIndex()
+	s.Options = labels
+	if keep < 0 || keep >= len(ids) {
+		keep = 0
+	}
+	if len(ids) > 0 {
+		s.SetSelectedIndex(keep)
+	}
+	s.Refresh()
+	return ids
+}
+
+// selectedID is the id of the decision chosen in s, or "" (the root) for none.
+func selectedID(s *widget.Select, ids []string) string {
+	if i := s.SelectedIndex(); i >= 0 && i < len(ids) {
+		return ids[i]
+	}
+	return ""
 }
 
 // formRow lays out label/field pairs in rows of up to three pairs, fields stretched.
