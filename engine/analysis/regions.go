@@ -2,7 +2,6 @@ package analysis
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"runtime"
@@ -206,7 +205,6 @@ func (rm *RegionMap) Boundary() [][4]float64 {
 
 // WriteCSV writes the map as a table: one row per y value, one column per x value, the best alternative in each cell.
 func (rm *RegionMap) WriteCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	head := []string{rm.YName + " \\ " + rm.XName}
 	for _, x := range rm.Xs {
 		head = append(head, x.String())
@@ -219,10 +217,7 @@ func (rm *RegionMap) WriteCSV(w io.Writer) error {
 		}
 		rows = append(rows, row)
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }
 
 // RegionDoc is the JSON form of a two-way map.

@@ -2,7 +2,6 @@ package analysis
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"strconv"
@@ -214,7 +213,6 @@ func (s *SweepResult) Doc() SweepDoc {
 
 // WriteCSV writes one row per point: the input value, each alternative's value, the best.
 func (s *SweepResult) WriteCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	head := append([]string{s.InputName}, s.Alternatives...)
 	head = append(head, "best")
 	rows := [][]string{head}
@@ -225,23 +223,16 @@ func (s *SweepResult) WriteCSV(w io.Writer) error {
 		}
 		rows = append(rows, append(row, s.Alternatives[s.Best[k]]))
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }
 
 // WriteBreakEvensCSV writes the break-even table.
 func (s *SweepResult) WriteBreakEvensCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	rows := [][]string{{s.InputName, "best below", "best above", "value at break-even", "method"}}
 	for _, b := range s.BreakEvens {
 		rows = append(rows, []string{b.At.String(), s.Alternatives[b.From], s.Alternatives[b.To], b.Value.String(), b.Method()})
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }
 
 // Describe lists the break-evens in sentences.
