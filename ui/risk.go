@@ -69,10 +69,10 @@ type riskPanel struct {
 	body        *fyne.Container
 	content     fyne.CanvasObject
 
-	cells  [][]string // header row first
-	last   *analysis.Analysis
-	cancel context.CancelFunc
-	ready  bool // callbacks fired while the widgets are being built are ignored
+	cells   [][]string // header row first
+	last    *analysis.Analysis
+	running latestRun
+	ready   bool // callbacks fired while the widgets are being built are ignored
 	// background runs the analysis off the event goroutine; tests run it inline
 	// because the Fyne test driver's fyne.Do does not hand back to one goroutine.
 	background func(func())
@@ -255,15 +255,10 @@ func (rp *riskPanel) refresh() {
 		rp.status.SetText(err.Error())
 		return
 	}
-	if rp.cancel != nil {
-		rp.cancel()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	rp.cancel = cancel
 	clone := p.Clone()
 	cumulative := rp.chartKind.Selected == chartCumulative
 	rp.busy.Show()
-	rp.background(func() {
+	rp.running.start(rp.background, func(context.Context) func() {
 		a, err := analysis.Analyse(clone, opt)
 		var img image.Image
 		if err == nil {
@@ -272,13 +267,10 @@ func (rp *riskPanel) refresh() {
 				img = analysis.ChartImage(plt, chartW, chartH)
 			}
 		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return
-			}
+		return func() {
 			rp.busy.Hide()
 			rp.show(a, img, err)
-		})
+		}
 	})
 }
 

@@ -10,7 +10,6 @@ import (
 	"fyne.io/fyne/v2"
 	fcanvas "fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/container"
-	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
 	"github.com/shopspring/decimal"
 	"gonum.org/v1/plot"
@@ -229,21 +228,7 @@ func saveChartDialog(h Host, title string, p *plot.Plot, name string) {
 		h.ShowError(title, fmt.Errorf("nothing to save yet; run the analysis first"))
 		return
 	}
-	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil || w == nil {
-			if err != nil {
-				h.ShowError(title, err)
-			}
-			return
-		}
-		path := w.URI().Path()
-		w.Close()
-		if err := analysis.SaveSensitivityChart(p, path); err != nil {
-			h.ShowError(title, err)
-		}
-	}, h.Window())
-	d.SetFileName(name)
-	d.Show()
+	askPathAndSave(h, title, name, func(path string) error { return analysis.SaveSensitivityChart(p, path) })
 }
 
 // saveCSVDialog asks for a file name and writes a table as CSV.
@@ -252,24 +237,12 @@ func saveCSVDialog(h Host, title string, write func(io.Writer) error, name strin
 		h.ShowError(title, fmt.Errorf("nothing to save yet; run the analysis first"))
 		return
 	}
-	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil || w == nil {
-			if err != nil {
-				h.ShowError(title, err)
-			}
-			return
-		}
-		path := w.URI().Path()
-		w.Close()
+	askPathAndSave(h, title, name, func(path string) error {
 		if !strings.EqualFold(filepath.Ext(path), ".csv") {
 			path += ".csv"
 		}
-		if err := engine.WriteAtomic(path, write); err != nil {
-			h.ShowError(title, err)
-		}
-	}, h.Window())
-	d.SetFileName(name)
-	d.Show()
+		return engine.WriteAtomic(path, write)
+	})
 }
 
 // textTable is a read-only table with a header row.

@@ -33,7 +33,7 @@ type sweepPanel struct {
 	decIDs   []string
 	result   *analysis.SweepResult
 	content  fyne.CanvasObject
-	running  context.CancelFunc
+	running  latestRun
 	// background runs work off the event goroutine; tests run it inline, as the
 	// Fyne test driver's fyne.Do runs on the calling goroutine.
 	background func(func())
@@ -79,22 +79,8 @@ func (sp *sweepPanel) Update(*engine.Result) {
 func (sp *sweepPanel) refreshChoices() {
 	p := sp.h.Project()
 	sp.choices = inputChoices(p, true)
-	keep := sp.input.Selected
-	sp.input.Options = choiceLabels(sp.choices)
-	if _, ok := findChoice(sp.choices, keep); !ok {
-		sp.input.ClearSelected()
-	}
-	sp.input.Refresh()
-	labels, ids := decisionChoices(p)
-	keepDec := sp.decision.SelectedIndex()
-	sp.decision.Options, sp.decIDs = labels, ids
-	if keepDec < 0 || keepDec >= len(ids) {
-		keepDec = 0
-	}
-	if len(ids) > 0 {
-		sp.decision.SetSelectedIndex(keepDec)
-	}
-	sp.decision.Refresh()
+	refreshInputSelect(sp.input, sp.choices)
+	sp.decIDs = refreshDecisionSelect(sp.decision, p)
 }
 
 // Run starts the sweep on a clone, off the event goroutine.
@@ -115,39 +101,13 @@ func (sp *sweepPanel) Run() {
 		return
 	}
 	opts := analysis.SweepOptions{Range: rng, Steps: steps}
-	if i := sp.decision.SelectedIndex(); i >= 0 && i < len(sp.decIDs) {
-		opts.Decision = sp.decIDs[i]
-	}
-	if sp.running != nil {
-		sp.running()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	sp.running = cancel
+	opts.Decision = selectedID(sp.decision, sp.decIDs)
 	clone := sp.h.Project().Clone()
 	sp.status.SetText("Working…")
-	sp.background(func() {
+	sp.running.start(sp.background, func(ctx context.Context) func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Sweep(ctx, clone, r, in, opts)
-		var show func()
-		if err == nil {
-			pl, cerr := res.Chart()
-			if cerr != nil {
-				err = cerr
-			} else {
-				img := analysis.SensitivityChartImage(pl, chartPxW, chartPxH)
-				show = func() { sp.show(res); sp.chart.show(pl, img) }
-			}
-		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return
-			}
-			if err != nil {
-				sp.status.SetText(err.Error())
-				return
-			}
-			show()
-		})
+		return sensHandBack(err, res.Chart, sp.chart, sp.status, func() { sp.show(res) })
 	})
 }
 
@@ -199,7 +159,7 @@ type tornadoPanel struct {
 	table   *textTable
 	result  *analysis.TornadoResult
 	content fyne.CanvasObject
-	running context.CancelFunc
+	running latestRun
 	// background runs work off the event goroutine (inline in tests).
 	background func(func())
 }
@@ -235,39 +195,15 @@ func (tp *tornadoPanel) Update(*engine.Result) {
 }
 
 func (tp *tornadoPanel) Run() {
-	if tp.running != nil {
-		tp.running()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	tp.running = cancel
 	clone := tp.h.Project().Clone()
 	tp.status.SetText("Working…")
-	tp.background(func() {
+	tp.running.start(tp.background, func(ctx context.Context) func() {
 		r := engine.Evaluate(clone)
 		res, err := analysis.Tornado(ctx, clone, r)
-		var show func()
 		if err == nil && len(res.Bars) == 0 {
 			err = fmt.Errorf("no variable has both a low and a high; give ranges in the Variables table")
 		}
-		if err == nil {
-			pl, cerr := res.Chart()
-			if cerr != nil {
-				err = cerr
-			} else {
-				img := analysis.SensitivityChartImage(pl, chartPxW, chartPxH)
-				show = func() { tp.show(res); tp.chart.show(pl, img) }
-			}
-		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return
-			}
-			if err != nil {
-				tp.status.SetText(err.Error())
-				return
-			}
-			show()
-		})
+		return sensHandBack(err, res.Chart, tp.chart, tp.status, func() { tp.show(res) })
 	})
 }
 
@@ -310,7 +246,7 @@ type regionsPanel struct {
 	decIDs     []string
 	result     *analysis.RegionMap
 	content    fyne.CanvasObject
-	running    context.CancelFunc
+	running    latestRun
 	// background runs work off the event goroutine (inline in tests).
 	background func(func())
 }
@@ -368,31 +304,14 @@ func (rp *regionsPanel) refreshChoices() {
 	p := rp.h.Project()
 	rp.choices = inputChoices(p, true)
 	for _, s := range []*widget.Select{rp.x, rp.y} {
-		keep := s.Selected
-		s.Options = choiceLabels(rp.choices)
-		if _, ok := findChoice(rp.choices, keep); !ok {
-			s.ClearSelected()
-		}
-		s.Refresh()
+		refreshInputSelect(s, rp.choices)
 	}
-	labels, ids := decisionChoices(p)
-	keep := rp.decision.SelectedIndex()
-	rp.decision.Options, rp.decIDs = labels, ids
-	if keep < 0 || keep >= len(ids) {
-		keep = 0
-	}
-	if len(ids) > 0 {
-		rp.decision.SetSelectedIndex(keep)
-	}
-	rp.decision.Refresh()
+	rp.decIDs = refreshDecisionSelect(rp.decision, p)
 }
 
 // Cancel stops a running map.
 func (rp *regionsPanel) Cancel() {
-	if rp.running != nil {
-		rp.running()
-		rp.running = nil
-	}
+	rp.running.stop()
 	rp.cancel.Disable()
 	rp.run.Enable()
 	rp.status.SetText("Cancelled.")
@@ -420,53 +339,29 @@ func (rp *regionsPanel) Run() {
 		rp.status.SetText(fmt.Sprintf("Points per side: %q is not a whole number of at least 2.", rp.steps.Text))
 		return
 	}
-	if rp.running != nil {
-		rp.running()
-	}
-	ctx, cancel := context.WithCancel(context.Background())
-	rp.running = cancel
 	opts := analysis.RegionOptions{XRange: xr, YRange: yr, Steps: steps}
-	if i := rp.decision.SelectedIndex(); i >= 0 && i < len(rp.decIDs) {
-		opts.Decision = rp.decIDs[i]
-	}
-	opts.Progress = func(done, total int) {
-		fyne.Do(func() {
-			if ctx.Err() == nil {
-				rp.progress.SetValue(float64(done) / float64(total))
-			}
-		})
-	}
+	opts.Decision = selectedID(rp.decision, rp.decIDs)
 	clone := rp.h.Project().Clone()
 	rp.progress.SetValue(0)
 	rp.run.Disable()
 	rp.cancel.Enable()
 	rp.status.SetText("Working…")
-	rp.background(func() {
+	rp.running.start(rp.background, func(ctx context.Context) func() {
+		opts.Progress = func(done, total int) {
+			fyne.Do(func() {
+				if ctx.Err() == nil {
+					rp.progress.SetValue(float64(done) / float64(total))
+				}
+			})
+		}
 		r := engine.Evaluate(clone)
 		res, err := analysis.Regions(ctx, clone, r, x, y, opts)
-		var show func()
-		if err == nil {
-			pl, cerr := res.Chart()
-			if cerr != nil {
-				err = cerr
-			} else {
-				img := analysis.SensitivityChartImage(pl, chartPxW, chartPxH)
-				show = func() { rp.show(res); rp.chart.show(pl, img) }
-			}
-		}
-		fyne.Do(func() {
-			if ctx.Err() != nil {
-				return // cancelled or replaced by a newer run
-			}
-			rp.running = nil
+		show := sensHandBack(err, res.Chart, rp.chart, rp.status, func() { rp.show(res) })
+		return func() {
 			rp.run.Enable()
 			rp.cancel.Disable()
-			if err != nil {
-				rp.status.SetText(err.Error())
-				return
-			}
 			show()
-		})
+		}
 	})
 }
 
@@ -481,6 +376,41 @@ func (rp *regionsPanel) show(rm *analysis.RegionMap) {
 		rows = append(rows, []string{rm.Alternatives[i], strconv.Itoa(c), fmt.Sprintf("%.1f%%", 100*float64(c)/float64(total))})
 	}
 	rp.table.set(rows)
+}
+
+// refreshInputSelect refills an input select from choices, keeping its
+// selection while that input still exists.
+func refreshInputSelect(s *widget.Select, choices []inputChoice) {
+	keep := s.Selected
+	s.Options = choiceLabels(choices)
+	if _, ok := findChoice(choices, keep); !ok {
+		s.ClearSelected()
+	}
+	s.Refresh()
+}
+
+// refreshDecisionSelect refills a decision select from p, keeping the chosen
+// place in the list (else the first), and returns the decisions' ids in order.
+func refreshDecisionSelect(s *widget.Select, p *engine.Project) []string {
+	labels, ids := decisionChoices(p)
+	keep := s.SelectedIndex()
+	s.Options = labels
+	if keep < 0 || keep >= len(ids) {
+		keep = 0
+	}
+	if len(ids) > 0 {
+		s.SetSelectedIndex(keep)
+	}
+	s.Refresh()
+	return ids
+}
+
+// selectedID is the id of the decision chosen in s, or "" (the root) for none.
+func selectedID(s *widget.Select, ids []string) string {
+	if i := s.SelectedIndex(); i >= 0 && i < len(ids) {
+		return ids[i]
+	}
+	return ""
 }
 
 // formRow lays out label/field pairs in rows of up to three pairs, fields stretched.

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"strings"
@@ -49,26 +48,15 @@ func runEval(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify eval: --csv takes paths, strategies or variables, not %q\n", *csvTable)
 		return exitUsage
 	}
-	_, r, code := loadProject(path, stderr)
+	_, r, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	switch {
 	case *asJSON:
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(engine.ResultJSON(r)); err != nil {
-			fmt.Fprintln(stderr, "ramify eval:", err)
-			return exitInvalid
-		}
+		return writeJSON(fs.Name(), stdout, stderr, engine.ResultJSON(r))
 	case *csvTable != "":
-		if err := engine.WriteCSV(stdout, r, strings.ToLower(*csvTable)); err != nil {
-			fmt.Fprintln(stderr, "ramify eval:", err)
-			return exitInvalid
-		}
+		return failOn(fs.Name(), engine.WriteCSV(stdout, r, strings.ToLower(*csvTable)), stderr)
 	default:
 		printEval(stdout, r)
 	}

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 
@@ -37,13 +36,7 @@ func runExplain(args []string, stdout, stderr io.Writer) int {
 		return exitInvalid
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(e); err != nil {
-			fmt.Fprintln(stderr, "ramify explain:", err)
-			return exitInvalid
-		}
-		return exitOK
+		return writeJSON(fs.Name(), stdout, stderr, e)
 	}
 	fmt.Fprint(stdout, e.Text())
 	return exitOK

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"strings"
@@ -46,11 +45,8 @@ func runProfile(args []string, stdout, stderr io.Writer) int {
 			return exitUsage
 		}
 	}
-	p, r, code := loadProject(path, stderr)
+	p, r, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	opt := analysis.Options{NodeID: *nodeID, Strategies: *strategies, Limit: *limit}
@@ -82,19 +78,12 @@ func runProfile(args []string, stdout, stderr io.Writer) int {
 		if err == nil {
 			err = analysis.SaveChart(chart, *out, 0, 0)
 		}
-		if err != nil {
-			fmt.Fprintln(stderr, "ramify profile:", err)
-			return exitInvalid
+		if code := failOn(fs.Name(), err, stderr); code != exitOK {
+			return code
 		}
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(a.JSON()); err != nil {
-			fmt.Fprintln(stderr, "ramify profile:", err)
-			return exitInvalid
-		}
-		return exitOK
+		return writeJSON(fs.Name(), stdout, stderr, a.JSON())
 	}
 	printProfile(stdout, a)
 	if *out != "" {

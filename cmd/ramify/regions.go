@@ -24,9 +24,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 	yTo := fs.String("y-to", "", "high end of y's range")
 	steps := fs.Int("steps", analysis.DefaultGrid, "points along each axis")
 	node := fs.String("node", "", "id of the decision whose alternatives are compared (default: the root)")
-	asJSON := fs.Bool("json", false, "print one JSON object")
-	asCSV := fs.Bool("csv", false, "print the grid as CSV")
-	out := fs.String("o", "", "write the map to this file (.png, .svg or .pdf)")
+	out := sensOutputFlags(fs, "print one JSON object",
+		"print the grid as CSV", "write the map to this file (.png, .svg or .pdf)")
 	path, ok := parseArgs(fs, args, stderr)
 	if !ok {
 		return exitUsage
@@ -35,9 +34,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ramify regions: name both inputs with --x and --y")
 		return exitUsage
 	}
-	if *asJSON && *asCSV {
-		fmt.Fprintln(stderr, "ramify regions: choose one of --json and --csv")
-		return exitUsage
+	if code := out.check(fs.Name(), stderr); code != exitOK {
+		return code
 	}
 	var ins [2]analysis.Input
 	for i, text := range []string{*x, *y} {
@@ -48,11 +46,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		}
 		ins[i] = in
 	}
-	p, r, code := loadProject(path, stderr)
+	p, r, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	xr, code := sensRange("ramify regions (x)", *xFrom, *xTo, r, stderr)
@@ -69,23 +64,8 @@ func runRegions(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify regions: %s: %s\n", path, err)
 		return exitInvalid
 	}
-	if *out != "" {
-		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-			return code
-		}
-	}
-	switch {
-	case *asJSON:
-		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
-	case *asCSV:
-		if err := res.WriteCSV(stdout); err != nil {
-			fmt.Fprintln(stderr, "ramify regions:", err)
-			return exitInvalid
-		}
-		return exitOK
-	}
-	printRegions(stdout, res)
-	return exitOK
+	return out.write(fs.Name(), res, func() any { return res.Doc() },
+		func(w io.Writer) { printRegions(w, res) }, stdout, stderr)
 }
 
 func printRegions(w io.Writer, rm *analysis.RegionMap) {

@@ -36,11 +36,8 @@ func runReport(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ramify report:", err)
 		return exitUsage
 	}
-	p, r, code := loadProject(path, stderr)
+	p, r, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	if err := report.WriteFile(context.Background(), *out, p, r, opts); err != nil {

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -60,38 +59,27 @@ func runSimulate(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify simulate: --seed takes a whole number from 0 up, not %q\n", *seed)
 		return exitUsage
 	}
-	p, r, code := loadProject(path, stderr)
+	p, r, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
 	defer stop()
 	res, err := analysis.Simulate(ctx, p, analysis.SimOptions{N: *n, Seed: s, Mode: analysis.SimMode(strings.ToLower(*mode)), Workers: *workers})
-	if err != nil {
-		fmt.Fprintln(stderr, "ramify simulate:", err)
-		return exitInvalid
+	if code := failOn(fs.Name(), err, stderr); code != exitOK {
+		return code
 	}
 	if *chart != "" {
-		if err := analysis.SaveSimulationCharts(res.Charts(p.Currency), *chart); err != nil {
-			fmt.Fprintln(stderr, "ramify simulate:", err)
-			return exitInvalid
+		if code := failOn(fs.Name(), analysis.SaveSimulationCharts(res.Charts(p.Currency), *chart), stderr); code != exitOK {
+			return code
 		}
 	}
 	switch {
 	case *asJSON:
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(simJSON(res)); err != nil {
-			fmt.Fprintln(stderr, "ramify simulate:", err)
-			return exitInvalid
-		}
+		return writeJSON(fs.Name(), stdout, stderr, simJSON(res))
 	case *csvTable != "":
-		if err := analysis.WriteSimulationCSV(stdout, res, strings.ToLower(*csvTable)); err != nil {
-			fmt.Fprintln(stderr, "ramify simulate:", err)
-			return exitInvalid
+		if code := failOn(fs.Name(), analysis.WriteSimulationCSV(stdout, res, strings.ToLower(*csvTable)), stderr); code != exitOK {
+			return code
 		}
 	default:
 		printSimulation(stdout, p, r, res)

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"fmt"
 	"io"
 	"strings"
@@ -26,9 +25,8 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	to := fs.String("to", "", "high end of the range")
 	steps := fs.Int("steps", analysis.DefaultSteps, "intervals across the range")
 	node := fs.String("node", "", "id of the decision whose alternatives are compared (default: the root)")
-	asJSON := fs.Bool("json", false, "print one JSON object (break-evens as exact decimal strings)")
-	asCSV := fs.Bool("csv", false, "print the points as CSV")
-	out := fs.String("o", "", "write the chart to this file (.png, .svg or .pdf)")
+	out := sensOutputFlags(fs, "print one JSON object (break-evens as exact decimal strings)",
+		"print the points as CSV", "write the chart to this file (.png, .svg or .pdf)")
 	path, ok := parseArgs(fs, args, stderr)
 	if !ok {
 		return exitUsage
@@ -37,15 +35,11 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 	if code != exitOK {
 		return code
 	}
-	if *asJSON && *asCSV {
-		fmt.Fprintln(stderr, "ramify sweep: choose one of --json and --csv")
-		return exitUsage
-	}
-	p, r, code := loadProject(path, stderr)
-	if code != exitOK {
+	if code := out.check(fs.Name(), stderr); code != exitOK {
 		return code
 	}
-	if code := requireValid(path, r, stderr); code != exitOK {
+	p, r, code := loadValid(path, stderr)
+	if code != exitOK {
 		return code
 	}
 	rng, code := sensRange(fs.Name(), *from, *to, r, stderr)
@@ -57,23 +51,8 @@ func runSweep(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify sweep: %s: %s\n", path, err)
 		return exitInvalid
 	}
-	if *out != "" {
-		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-			return code
-		}
-	}
-	switch {
-	case *asJSON:
-		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
-	case *asCSV:
-		if err := res.WriteCSV(stdout); err != nil {
-			fmt.Fprintln(stderr, "ramify sweep:", err)
-			return exitInvalid
-		}
-		return exitOK
-	}
-	printSweep(stdout, res)
-	return exitOK
+	return out.write(fs.Name(), res, func() any { return res.Doc() },
+		func(w io.Writer) { printSweep(w, res) }, stdout, stderr)
 }
 
 func printSweep(w io.Writer, s *analysis.SweepResult) {
@@ -163,14 +142,4 @@ func sensRange(cmd, from, to string, r *engine.Result, stderr io.Writer) (*analy
 		}
 	}
 	return &analysis.Range{Low: ends[0], High: ends[1]}, exitOK
-}
-
-func printSensJSON(cmd string, stdout, stderr io.Writer, doc any) int {
-	enc := json.NewEncoder(stdout)
-	enc.SetIndent("", "  ")
-	if err := enc.Encode(doc); err != nil {
-		fmt.Fprintf(stderr, "%s: %s\n", cmd, err)
-		return exitInvalid
-	}
-	return exitOK
 }

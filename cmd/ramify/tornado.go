@@ -6,8 +6,6 @@ import (
 	"io"
 	"text/tabwriter"
 
-	"gonum.org/v1/plot"
-
 	"github.com/ramify-app/ramify/engine"
 	"github.com/ramify-app/ramify/engine/analysis"
 )
@@ -18,22 +16,17 @@ func init() {
 
 func runTornado(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("tornado", stderr)
-	asJSON := fs.Bool("json", false, "print one JSON object (exact decimal strings)")
-	asCSV := fs.Bool("csv", false, "print the table as CSV")
-	out := fs.String("o", "", "write the chart to this file (.png, .svg or .pdf)")
+	out := sensOutputFlags(fs, "print one JSON object (exact decimal strings)",
+		"print the table as CSV", "write the chart to this file (.png, .svg or .pdf)")
 	path, ok := parseArgs(fs, args, stderr)
 	if !ok {
 		return exitUsage
 	}
-	if *asJSON && *asCSV {
-		fmt.Fprintln(stderr, "ramify tornado: choose one of --json and --csv")
-		return exitUsage
-	}
-	p, r, code := loadProject(path, stderr)
-	if code != exitOK {
+	if code := out.check(fs.Name(), stderr); code != exitOK {
 		return code
 	}
-	if code := requireValid(path, r, stderr); code != exitOK {
+	p, r, code := loadValid(path, stderr)
+	if code != exitOK {
 		return code
 	}
 	res, err := analysis.Tornado(context.Background(), p, r)
@@ -48,23 +41,8 @@ func runTornado(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ramify tornado: %s: no variable has both a low and a high; give ranges in the variables table\n", path)
 		return exitInvalid
 	}
-	if *out != "" {
-		if code := saveSensChart(fs.Name(), *out, res.Chart, stderr); code != exitOK {
-			return code
-		}
-	}
-	switch {
-	case *asJSON:
-		return printSensJSON(fs.Name(), stdout, stderr, res.Doc())
-	case *asCSV:
-		if err := res.WriteCSV(stdout); err != nil {
-			fmt.Fprintln(stderr, "ramify tornado:", err)
-			return exitInvalid
-		}
-		return exitOK
-	}
-	printTornado(stdout, res)
-	return exitOK
+	return out.write(fs.Name(), res, func() any { return res.Doc() },
+		func(w io.Writer) { printTornado(w, res) }, stdout, stderr)
 }
 
 func printTornado(w io.Writer, t *analysis.TornadoResult) {
@@ -87,17 +65,4 @@ func printTornado(w io.Writer, t *analysis.TornadoResult) {
 	fmt.Fprintln(w, "(flips: the variable's range changes the recommendation; every figure is exact)")
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, engine.Caution)
-}
-
-// saveChart builds a chart and writes it by extension.
-func saveSensChart(cmd, path string, build func() (*plot.Plot, error), stderr io.Writer) int {
-	pl, err := build()
-	if err == nil {
-		err = analysis.SaveSensitivityChart(pl, path)
-	}
-	if err != nil {
-		fmt.Fprintf(stderr, "%s: chart: %s\n", cmd, err)
-		return exitInvalid
-	}
-	return exitOK
 }

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"fmt"
 	"io"
 	"math"
@@ -47,11 +46,8 @@ func runVOI(args []string, stdout, stderr io.Writer) int {
 			spec.Likelihood = append(spec.Likelihood, cells)
 		}
 	}
-	p, r, code := loadProject(path, stderr)
+	p, _, code := loadValid(path, stderr)
 	if code != exitOK {
-		return code
-	}
-	if code := requireValid(path, r, stderr); code != exitOK {
 		return code
 	}
 	opt := analysis.VOIOptions{AnyBranch: *anyBranch}
@@ -68,13 +64,7 @@ func runVOI(args []string, stdout, stderr io.Writer) int {
 		}
 	}
 	if *asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(voiJSON(rep, plan)); err != nil {
-			fmt.Fprintln(stderr, "ramify voi:", err)
-			return exitInvalid
-		}
-		return exitOK
+		return writeJSON(fs.Name(), stdout, stderr, voiJSON(rep, plan))
 	}
 	printVOI(stdout, p, rep, plan)
 	return exitOK

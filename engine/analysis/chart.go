@@ -164,19 +164,32 @@ func WriteChart(w io.Writer, p *plot.Plot, format string, width, height vg.Lengt
 	if height <= 0 {
 		height = ChartHeight
 	}
-	var c vg.CanvasWriterTo
+	return writeFigure(w, format, width, height, p.Draw)
+}
+
+// chartCanvas makes a canvas of a format ("png", "svg" or "pdf") and size, or
+// nil for a format that cannot be written. PNG is drawn at ChartDPI on white.
+func chartCanvas(format string, width, height vg.Length) vg.CanvasWriterTo {
 	switch format {
 	case "png":
 		img := vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(ChartDPI), vgimg.UseBackgroundColor(color.White))
-		c = vgimg.PngCanvas{Canvas: img}
+		return vgimg.PngCanvas{Canvas: img}
 	case "svg":
-		c = vgsvg.New(width, height)
+		return vgsvg.New(width, height)
 	case "pdf":
-		c = vgpdf.New(width, height)
-	default:
+		return vgpdf.New(width, height)
+	}
+	return nil
+}
+
+// writeFigure draws a figure (a plot, or plots arranged on one canvas) in a
+// format to w.
+func writeFigure(w io.Writer, format string, width, height vg.Length, drawTo func(draw.Canvas)) error {
+	c := chartCanvas(format, width, height)
+	if c == nil {
 		return fmt.Errorf("cannot write %q charts; use png, svg or pdf", format)
 	}
-	p.Draw(draw.New(c))
+	drawTo(draw.New(c))
 	_, err := c.WriteTo(w)
 	return err
 }
@@ -184,26 +197,45 @@ func WriteChart(w io.Writer, p *plot.Plot, format string, width, height vg.Lengt
 // SaveChart writes p to path in the format its extension names, atomically: a
 // failure leaves any earlier file intact.
 func SaveChart(p *plot.Plot, path string, width, height vg.Length) error {
+	return saveFigure(path, func(w io.Writer, format string) error {
+		return WriteChart(w, p, format, width, height)
+	})
+}
+
+// saveFigure writes a figure to path in the format its extension names,
+// atomically: a failure leaves any earlier file intact.
+func saveFigure(path string, write func(w io.Writer, format string) error) error {
 	format, err := ChartFormat(path)
 	if err != nil {
 		return err
 	}
-	return engine.WriteAtomic(path, func(w io.Writer) error {
-		return WriteChart(w, p, format, width, height)
-	})
+	return engine.WriteAtomic(path, func(w io.Writer) error { return write(w, format) })
 }
 
 // ChartImage renders p to an image of the given pixel size, for display in a
 // window. It draws at 96 dpi so fonts match the screen.
 func ChartImage(p *plot.Plot, widthPx, heightPx int) image.Image {
+	widthPx, heightPx = imageSize(widthPx, heightPx)
+	return screenImage(widthPx, heightPx, p.Draw)
+}
+
+// imageSize is the pixel size asked for, or 640 × 400 when either side is not
+// positive.
+func imageSize(widthPx, heightPx int) (int, int) {
 	if widthPx <= 0 || heightPx <= 0 {
-		widthPx, heightPx = 640, 400
+		return 640, 400
 	}
+	return widthPx, heightPx
+}
+
+// screenImage renders a figure to an image of the given pixel size at 96 dpi,
+// so fonts match the screen, on white.
+func screenImage(widthPx, heightPx int, drawTo func(draw.Canvas)) image.Image {
 	const dpi = 96
 	w := vg.Length(widthPx) * vg.Inch / dpi
 	h := vg.Length(heightPx) * vg.Inch / dpi
 	c := vgimg.NewWith(vgimg.UseWH(w, h), vgimg.UseDPI(dpi), vgimg.UseBackgroundColor(color.White))
-	p.Draw(draw.New(c))
+	drawTo(draw.New(c))
 	return c.Image()
 }
 

@@ -2,7 +2,6 @@ package analysis
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"runtime"
@@ -69,22 +68,11 @@ func Regions(ctx context.Context, p *engine.Project, r *engine.Result, x, y Inpu
 	if x.IsVariable() && y.IsVariable() && x.Variable == y.Variable {
 		return nil, fmt.Errorf("the two inputs are both variable %q", x.Variable)
 	}
-	dec, err := decisionNode(p, o.Decision)
+	dec, m, binds, err := compileBound(p, o.Decision, sx, sy)
 	if err != nil {
 		return nil, err
 	}
-	m, err := engine.CompileFast(p)
-	if err != nil {
-		return nil, err
-	}
-	bx, err := sx.bindFast(m, p)
-	if err != nil {
-		return nil, err
-	}
-	by, err := sy.bindFast(m, p)
-	if err != nil {
-		return nil, err
-	}
+	bx, by := binds[0], binds[1]
 	res := &RegionMap{X: sx, Y: sy, XName: sx.Name(p), YName: sy.Name(p),
 		Xs: gridPoints(sx.Low, sx.High, steps-1), Ys: gridPoints(sy.Low, sy.High, steps-1),
 		Decision: dec, Alternatives: alternatives(dec), BaseBest: r.Choice(dec), ValueWord: r.ValueWord(), Unit: p.Currency}
@@ -217,7 +205,6 @@ func (rm *RegionMap) Boundary() [][4]float64 {
 
 // WriteCSV writes the map as a table: one row per y value, one column per x value, the best alternative in each cell.
 func (rm *RegionMap) WriteCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	head := []string{rm.YName + " \\ " + rm.XName}
 	for _, x := range rm.Xs {
 		head = append(head, x.String())
@@ -230,10 +217,7 @@ func (rm *RegionMap) WriteCSV(w io.Writer) error {
 		}
 		rows = append(rows, row)
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }
 
 // RegionDoc is the JSON form of a two-way map.

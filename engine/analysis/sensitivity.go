@@ -1,7 +1,9 @@
 package analysis
 
 import (
+	"encoding/csv"
 	"fmt"
+	"io"
 	"strconv"
 	"strings"
 
@@ -468,4 +470,13 @@ func (b fastInput) set(m *engine.FastModel, x float64) {
 			m.SetField(b.others[k], q)
 		}
 	}
+}
+
+// writeRows writes a table as CSV.
+func writeRows(w io.Writer, rows [][]string) error {
+	cw := csv.NewWriter(w)
+	if err := cw.WriteAll(rows); err != nil {
+		return err
+	}
+	return cw.Error()
 }

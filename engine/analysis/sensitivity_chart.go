@@ -12,9 +12,6 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
-	"gonum.org/v1/plot/vg/vgimg"
-	"gonum.org/v1/plot/vg/vgpdf"
-	"gonum.org/v1/plot/vg/vgsvg"
 
 	"github.com/ramify-app/ramify/engine"
 )
@@ -288,42 +285,20 @@ const sensChartHeight = ChartHeight + 1*vg.Centimeter
 // SaveSensitivityChart writes p to path as PNG, SVG or PDF, chosen by the
 // extension, atomically (a failure leaves an earlier file intact).
 func SaveSensitivityChart(p *plot.Plot, path string) error {
-	format, err := ChartFormat(path)
-	if err != nil {
-		return err
-	}
-	return engine.WriteAtomic(path, func(w io.Writer) error { return WriteSensitivityChart(w, p, format) })
+	return saveFigure(path, func(w io.Writer, format string) error { return WriteSensitivityChart(w, p, format) })
 }
 
-// WriteSensitivityChart draws p in a format ("png", "svg", "pdf") to w.
+// WriteSensitivityChart draws p in a format ("png", "svg", "pdf") to w, with
+// the legend below the plot.
 func WriteSensitivityChart(w io.Writer, p *plot.Plot, format string) error {
-	var c vg.CanvasWriterTo
-	switch format {
-	case "png":
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(ChartWidth, sensChartHeight), vgimg.UseDPI(ChartDPI),
-			vgimg.UseBackgroundColor(color.White))}
-	case "svg":
-		c = vgsvg.New(ChartWidth, sensChartHeight)
-	case "pdf":
-		c = vgpdf.New(ChartWidth, sensChartHeight)
-	default:
-		return fmt.Errorf("cannot write %q charts; use png, svg or pdf", format)
-	}
-	drawFigure(p, draw.New(c))
-	_, err := c.WriteTo(w)
-	return err
+	return writeFigure(w, format, ChartWidth, sensChartHeight, func(c draw.Canvas) { drawFigure(p, c) })
 }
 
-// SensitivityChartImage renders p for display at the given pixel size.
+// SensitivityChartImage renders p for display at the given pixel size, with
+// the legend below the plot.
 func SensitivityChartImage(p *plot.Plot, widthPx, heightPx int) image.Image {
-	if widthPx <= 0 || heightPx <= 0 {
-		widthPx, heightPx = 640, 400
-	}
-	const dpi = 96
-	c := vgimg.NewWith(vgimg.UseWH(vg.Length(widthPx)*vg.Inch/dpi, vg.Length(heightPx)*vg.Inch/dpi),
-		vgimg.UseDPI(dpi), vgimg.UseBackgroundColor(color.White))
-	drawFigure(p, draw.New(c))
-	return c.Image()
+	widthPx, heightPx = imageSize(widthPx, heightPx)
+	return screenImage(widthPx, heightPx, func(c draw.Canvas) { drawFigure(p, c) })
 }
 
 // drawFigure draws the plot with its legend in a band below it, so the legend

@@ -7,29 +7,24 @@ import (
 	"image/color"
 	"io"
 	"math"
-	"path/filepath"
+	"slices"
 	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
-	"gonum.org/v1/plot/vg/vgimg"
-	"gonum.org/v1/plot/vg/vgpdf"
-	"gonum.org/v1/plot/vg/vgsvg"
 
 	"github.com/ramify-app/ramify/engine"
 )
 
-// The shared chart helpers (engine/analysis/chart.go) were not on main when this
-// was written; these few private ones follow the same print style and can be
-// folded into them.
+// Simulation charts keep their own plot style (simPlot: no print-style fonts,
+// a grid); files and screen images are drawn with the shared helpers in chart.go.
 
 var (
-	simInk   = color.RGBA{0x1f, 0x4e, 0x79, 0xff} // dark blue lines
-	simFill  = color.RGBA{0x9d, 0xc3, 0xe6, 0xff} // light blue bars
-	simMark  = color.RGBA{0xb0, 0x3a, 0x2e, 0xff} // red reference lines
-	simWidth = 16 * vg.Centimeter
+	simInk  = color.RGBA{0x1f, 0x4e, 0x79, 0xff} // dark blue lines
+	simFill = color.RGBA{0x9d, 0xc3, 0xe6, 0xff} // light blue bars
+	simMark = color.RGBA{0xb0, 0x3a, 0x2e, 0xff} // red reference lines
 )
 
 func simPlot(title, x, y string) *plot.Plot {
@@ -40,13 +35,6 @@ func simPlot(title, x, y string) *plot.Plot {
 	p.BackgroundColor = color.White
 	p.Add(plotter.NewGrid())
 	return p
-}
-
-func simUnit(word, unit string) string {
-	if strings.TrimSpace(unit) == "" {
-		return word
-	}
-	return fmt.Sprintf("%s (%s)", word, unit)
 }
 
 func simVLine(p *plot.Plot, x, y0, y1 float64) {
@@ -64,7 +52,7 @@ func simVLine(p *plot.Plot, x, y0, y1 float64) {
 func (s *SimResult) Charts(unit string) []*plot.Plot {
 	word := strings.ToUpper(s.ValueWord[:1]) + s.ValueWord[1:]
 
-	hist := simPlot(fmt.Sprintf("%s: %d iterations, seed %d", word, s.Value.Count, s.Seed), simUnit(word, unit), "Share of iterations")
+	hist := simPlot(fmt.Sprintf("%s: %d iterations, seed %d", word, s.Value.Count, s.Seed), UnitLabel(word, unit), "Share of iterations")
 	total := 0
 	for _, c := range s.Histogram.Counts {
 		total += c
@@ -87,7 +75,7 @@ func (s *SimResult) Charts(unit string) []*plot.Plot {
 		hist.X.Max = s.Histogram.Lo + float64(len(bins))*s.Histogram.Width + s.Histogram.Width/2
 	}
 
-	cum := simPlot("Cumulative: chance of this much or less", simUnit(word, unit), "Cumulative probability")
+	cum := simPlot("Cumulative: chance of this much or less", UnitLabel(word, unit), "Cumulative probability")
 	sorted := sortedFinite(s.Samples)
 	if n := len(sorted); n > 0 {
 		step := max(1, n/1000)
@@ -106,7 +94,7 @@ func (s *SimResult) Charts(unit string) []*plot.Plot {
 		}
 	}
 
-	conv := simPlot("Running mean", "Iterations", simUnit("Mean "+s.ValueWord, unit))
+	conv := simPlot("Running mean", "Iterations", UnitLabel("Mean "+s.ValueWord, unit))
 	var pts plotter.XYs
 	for _, c := range s.Convergence {
 		pts = append(pts, plotter.XY{X: float64(c.Iteration), Y: c.Mean})
@@ -150,7 +138,7 @@ func (s *SimResult) altWord() string {
 // alternativesChart draws each alternative's value at the first decision as a
 // cumulative curve: the further left (benefits) or right (costs), the worse.
 func (s *SimResult) alternativesChart(unit string) *plot.Plot {
-	p := simPlot(fmt.Sprintf("Alternatives at %q: value per iteration", engine.NodeTitle(s.Decision)), simUnit(s.altWord(), unit), "Cumulative probability")
+	p := simPlot(fmt.Sprintf("Alternatives at %q: value per iteration", engine.NodeTitle(s.Decision)), UnitLabel(s.altWord(), unit), "Cumulative probability")
 	for i, a := range s.Alternatives {
 		sorted := sortedFinite(a.Samples)
 		n := len(sorted)
@@ -194,40 +182,24 @@ func simDraw(plots []*plot.Plot, c draw.Canvas) {
 	}
 }
 
-// SimulationChartFormat is the chart format named by a path's extension.
-func SimulationChartFormat(path string) (string, error) {
-	ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(path), "."))
-	switch ext {
-	case "png", "svg", "pdf":
-		return ext, nil
-	case "":
-		return "", fmt.Errorf("%s: no file extension; end the name with .png, .svg or .pdf", path)
-	}
-	return "", fmt.Errorf("%s: cannot write .%s charts; use .png, .svg or .pdf", path, ext)
-}
+// SimulationChartFormat is the chart format named by a path's extension; it
+// is ChartFormat, under the name the simulation callers know.
+func SimulationChartFormat(path string) (string, error) { return ChartFormat(path) }
 
 // WriteSimulationCharts draws the plots one above the other in the format.
 func WriteSimulationCharts(w io.Writer, plots []*plot.Plot, format string) error {
-	width, height := simWidth, vg.Length(len(plots))*9*vg.Centimeter
-	var c vg.CanvasWriterTo
-	switch format {
-	case "png":
-		c = vgimg.PngCanvas{Canvas: vgimg.NewWith(vgimg.UseWH(width, height), vgimg.UseDPI(144))}
-	case "svg":
-		c = vgsvg.New(width, height)
-	case "pdf":
-		c = vgpdf.New(width, height)
-	default:
+	if !slices.Contains(ChartFormats, format) {
 		return fmt.Errorf("chart format %q is unknown (use png, svg or pdf)", format)
 	}
-	simDraw(plots, draw.New(c))
-	_, err := c.WriteTo(w)
-	return err
+	height := vg.Length(len(plots)) * 9 * vg.Centimeter
+	return writeFigure(w, format, ChartWidth, height, func(c draw.Canvas) { simDraw(plots, c) })
 }
 
-// SaveSimulationCharts writes the plots to path (.png, .svg or .pdf) atomically.
+// SaveSimulationCharts writes the plots to path (.png, .svg or .pdf)
+// atomically. They are drawn to memory first, so a drawing failure never
+// starts a file.
 func SaveSimulationCharts(plots []*plot.Plot, path string) error {
-	format, err := SimulationChartFormat(path)
+	format, err := ChartFormat(path)
 	if err != nil {
 		return err
 	}
@@ -240,7 +212,5 @@ func SaveSimulationCharts(plots []*plot.Plot, path string) error {
 
 // SimulationChartImage renders one plot as an image for the window.
 func SimulationChartImage(p *plot.Plot, widthPx, heightPx int) image.Image {
-	c := vgimg.NewWith(vgimg.UseWH(vg.Length(widthPx)*vg.Inch/96, vg.Length(heightPx)*vg.Inch/96), vgimg.UseDPI(96))
-	p.Draw(draw.New(c))
-	return c.Image()
+	return screenImage(widthPx, heightPx, p.Draw)
 }

@@ -2,7 +2,6 @@ package analysis
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"strconv"
@@ -84,6 +83,26 @@ func gridPoints(low, high decimal.Decimal, steps int) []decimal.Decimal {
 	return out
 }
 
+// compileBound finds the decision whose alternatives are compared (default: the
+// root), compiles p for the float evaluator and binds each setting's input to it.
+func compileBound(p *engine.Project, decisionID string, settings ...*Setting) (*engine.Node, *engine.FastModel, []fastInput, error) {
+	dec, err := decisionNode(p, decisionID)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	m, err := engine.CompileFast(p)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	binds := make([]fastInput, len(settings))
+	for i, s := range settings {
+		if binds[i], err = s.bindFast(m, p); err != nil {
+			return nil, nil, nil, err
+		}
+	}
+	return dec, m, binds, nil
+}
+
 func checkSteps(steps int) (int, error) {
 	if steps == 0 {
 		return DefaultSteps, nil
@@ -106,18 +125,11 @@ func Sweep(ctx context.Context, p *engine.Project, r *engine.Result, in Input, o
 	if err != nil {
 		return nil, err
 	}
-	dec, err := decisionNode(p, o.Decision)
+	dec, m, binds, err := compileBound(p, o.Decision, s)
 	if err != nil {
 		return nil, err
 	}
-	m, err := engine.CompileFast(p)
-	if err != nil {
-		return nil, err
-	}
-	bind, err := s.bindFast(m, p)
-	if err != nil {
-		return nil, err
-	}
+	bind := binds[0]
 	res := &SweepResult{Setting: s, InputName: s.Name(p), Decision: dec, Alternatives: alternatives(dec),
 		X: gridPoints(s.Low, s.High, steps), BaseBest: r.Choice(dec), ValueWord: r.ValueWord(),
 		Unit: p.Currency, Decimals: p.Decimals}
@@ -201,7 +213,6 @@ func (s *SweepResult) Doc() SweepDoc {
 
 // WriteCSV writes one row per point: the input value, each alternative's value, the best.
 func (s *SweepResult) WriteCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	head := append([]string{s.InputName}, s.Alternatives...)
 	head = append(head, "best")
 	rows := [][]string{head}
@@ -212,23 +223,16 @@ func (s *SweepResult) WriteCSV(w io.Writer) error {
 		}
 		rows = append(rows, append(row, s.Alternatives[s.Best[k]]))
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }
 
 // WriteBreakEvensCSV writes the break-even table.
 func (s *SweepResult) WriteBreakEvensCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	rows := [][]string{{s.InputName, "best below", "best above", "value at break-even", "method"}}
 	for _, b := range s.BreakEvens {
 		rows = append(rows, []string{b.At.String(), s.Alternatives[b.From], s.Alternatives[b.To], b.Value.String(), b.Method()})
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }
 
 // Describe lists the break-evens in sentences.

@@ -2,7 +2,6 @@ package analysis
 
 import (
 	"context"
-	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
@@ -237,15 +236,11 @@ func (t *TornadoResult) Doc() TornadoDoc {
 
 // WriteCSV writes the tornado table, one row per variable in bar order.
 func (t *TornadoResult) WriteCSV(w io.Writer) error {
-	cw := csv.NewWriter(w)
 	rows := [][]string{{"variable", "low", "high", "base", t.ValueWord + " at low", t.ValueWord + " at high",
 		"swing", "choice at low", "choice at high", "flips recommendation"}}
 	for _, b := range t.Bars {
 		rows = append(rows, []string{b.Variable, b.Low.String(), b.High.String(), b.Base.String(), b.AtLow.String(),
 			b.AtHigh.String(), b.Swing.String(), t.choiceName(b.ChoiceLow), t.choiceName(b.ChoiceHigh), fmt.Sprint(b.Flips)})
 	}
-	if err := cw.WriteAll(rows); err != nil {
-		return err
-	}
-	return cw.Error()
+	return writeRows(w, rows)
 }

@@ -137,7 +137,24 @@ func (u *Uncertainty) consistent(r *engine.Result, root *engine.Node) ([]decimal
 	for i := range probs {
 		probs[i] = r.Probability(first, i)
 	}
-	// Occurrences below each node, children before parents.
+	twice := ""
+	u.occurrencesBelow(root, func(n *engine.Node, below map[*engine.Node]int) bool {
+		if u.is(n) && below[n] > 1 {
+			twice = fmt.Sprintf("%q appears twice on one path (node %q lies below another node of that name)", u.Name, n.ID)
+			return false
+		}
+		return true
+	})
+	if twice != "" {
+		return nil, twice
+	}
+	return probs, ""
+}
+
+// occurrencesBelow visits the nodes under root, children before parents, with
+// below counting the nodes of U at or below each node visited so far; it stops
+// at the first visit that returns false.
+func (u *Uncertainty) occurrencesBelow(root *engine.Node, visit func(n *engine.Node, below map[*engine.Node]int) bool) {
 	below := map[*engine.Node]int{}
 	nodes := preorder(root)
 	for i := len(nodes) - 1; i >= 0; i-- {
@@ -147,33 +164,21 @@ func (u *Uncertainty) consistent(r *engine.Result, root *engine.Node) ([]decimal
 			c += below[b.To]
 		}
 		if u.is(n) {
-			if c > 0 {
-				return nil, fmt.Sprintf("%q appears twice on one path (node %q lies below another node of that name)", u.Name, n.ID)
-			}
 			c++
 		}
 		below[n] = c
+		if !visit(n, below) {
+			return
+		}
 	}
-	return probs, ""
 }
 
 // crossesDecision reports why U cannot be moved in front of the decisions above
 // it ("" when it can), and whether any decision lies above an occurrence at all.
 func (u *Uncertainty) crossesDecision(root *engine.Node, anyBranch bool) (reason string, crosses bool) {
-	below := map[*engine.Node]int{}
-	nodes := preorder(root)
-	for i := len(nodes) - 1; i >= 0; i-- {
-		n := nodes[i]
-		c := 0
-		for _, b := range n.Branches {
-			c += below[b.To]
-		}
-		if u.is(n) {
-			c++
-		}
-		below[n] = c
-		if n.Kind != engine.Decision || c == 0 {
-			continue
+	u.occurrencesBelow(root, func(n *engine.Node, below map[*engine.Node]int) bool {
+		if n.Kind != engine.Decision || below[n] == 0 {
+			return true
 		}
 		crosses = true
 		var without []string
@@ -186,7 +191,8 @@ func (u *Uncertainty) crossesDecision(root *engine.Node, anyBranch bool) (reason
 			reason = fmt.Sprintf("%q lies after decision %q only on some branches (not on %s); learning it first would assume it happens whatever is chosen there. Add a chance node of the same name to those branches, or allow it with the any-branch option",
 				u.Name, engine.NodeTitle(n), strings.Join(without, ", "))
 		}
-	}
+		return true
+	})
 	return reason, crosses
 }
 
