@@ -187,11 +187,8 @@ func (r *Result) index() {
 	r.Project.sizeHint = count
 	r.value = make([]decimal.Decimal, count)
 	r.choice = make([]int, count)
-	r.ties = make([][]int, count)
 	r.onPolicy = make([]bool, count)
 	r.payoff = make([]decimal.Decimal, count)
-	r.prob = make([][]decimal.Decimal, count)
-	r.cash = make([][]decimal.Decimal, count)
 	r.broken = make([]bool, count)
 	r.parent = make([]int32, count)
 	r.parentBranch = make([]int32, count)
@@ -200,18 +197,41 @@ func (r *Result) index() {
 	for _, n := range r.Nodes {
 		slots += len(n.Branches)
 	}
-	probs, cashes := make([]decimal.Decimal, slots), make([]decimal.Decimal, slots)
+	r.probFlat, r.cashFlat = make([]decimal.Decimal, slots), make([]decimal.Decimal, slots)
+	r.probS, r.cashS = make([]small, slots), make([]small, slots)
+	r.payoffS = make([]small, count)
+	r.first = make([]int32, count+1)
+	slot := int32(0)
 	for i, n := range r.Nodes {
 		r.choice[i] = -1
-		k := len(n.Branches)
-		r.prob[i], r.cash[i] = probs[:k:k], cashes[:k:k]
-		probs, cashes = probs[k:], cashes[k:]
+		r.first[i] = slot
+		slot += int32(len(n.Branches))
 		for bi, b := range n.Branches {
 			if c := b.To; c != nil && c.index < count && r.Nodes[c.index] == c && c.index > i {
 				r.parent[c.index], r.parentBranch[c.index] = int32(i), int32(bi)
 			}
 		}
 	}
+	r.first[count] = slot
+}
+
+// probsOf and cashOf are node i's evaluated branch probabilities and cash, as
+// views into one flat slice each (one allocation for the whole tree).
+func (r *Result) probsOf(i int) []decimal.Decimal { return r.probFlat[r.first[i]:r.first[i+1]] }
+func (r *Result) cashOf(i int) []decimal.Decimal  { return r.cashFlat[r.first[i]:r.first[i+1]] }
+func (r *Result) probSOf(i int) []small           { return r.probS[r.first[i]:r.first[i+1]] }
+func (r *Result) cashSOf(i int) []small           { return r.cashS[r.first[i]:r.first[i+1]] }
+
+// setTies records the branches tied with node i's choice; ties are rare, so a map.
+func (r *Result) setTies(i int, ties []int) {
+	if len(ties) == 0 {
+		delete(r.ties, i)
+		return
+	}
+	if r.ties == nil {
+		r.ties = map[int][]int{}
+	}
+	r.ties[i] = ties
 }
 
 // checkIDs reports ids used twice. The project keeps the id → node map of its
@@ -219,10 +239,12 @@ func (r *Result) index() {
 // after an edit) look-ups suffice and the map is not rebuilt.
 func (r *Result) checkIDs() {
 	p := r.Project
-	if len(p.idCache) == len(r.Nodes) {
+	// Fast path: the same number of nodes, each still carrying the id it had when
+	// the ids were last found unique (new nodes carry none), so nothing can clash.
+	if p.idsChecked == len(r.Nodes) {
 		same := true
 		for _, n := range r.Nodes {
-			if p.idCache[n.ID] != n {
+			if n.checkedID != n.ID || n.checkedID == "" {
 				same = false
 				break
 			}
@@ -231,41 +253,50 @@ func (r *Result) checkIDs() {
 			return
 		}
 	}
+	p.idsChecked = -1
 	ids := make(map[string]*Node, len(r.Nodes))
+	unique := true
 	for _, n := range r.Nodes {
 		if _, dup := ids[n.ID]; dup {
 			r.nodeProblem(n, -1, "id", "the id is used by another node")
+			unique = false
 			continue
 		}
 		ids[n.ID] = n
 	}
-	p.idCache = nil
-	if len(ids) == len(r.Nodes) {
-		p.idCache = ids
+	for _, n := range r.Nodes {
+		n.checkedID = ""
+		if unique {
+			n.checkedID = n.ID
+		}
+	}
+	if unique {
+		p.idsChecked = len(r.Nodes)
 	}
 }
 
 // evalField evaluates an optional formula field; empty means zero.
-func (r *Result) evalField(cache *cachedFormula, src string, n *Node, branch int, field string) (decimal.Decimal, bool) {
+// Its int64 form comes along, worked out once per value and cached with it.
+func (r *Result) evalField(cache *cachedFormula, src string, n *Node, branch int, field string) (decimal.Decimal, small, bool) {
 	if strings.TrimSpace(src) == "" {
-		return decimal.Zero, true
+		return decimal.Zero, small{ok: true}, true
 	}
 	f, err := cache.get(src)
 	if err == nil {
 		if f.constant {
-			return f.cval, true
+			return f.cval, f.csmall, true
 		}
 		if cache.gen == r.varsGen { // same text, same variable values: same result
-			return cache.val, true
+			return cache.val, cache.sval, true
 		}
 		var v decimal.Decimal
 		if v, err = f.Eval(r.Vars); err == nil {
-			cache.val, cache.gen = v, r.varsGen
-			return v, true
+			cache.val, cache.sval, cache.gen = v, smallOf(v), r.varsGen
+			return v, cache.sval, true
 		}
 	}
 	r.nodeProblem(n, branch, field, err.Error())
-	return decimal.Zero, false
+	return decimal.Zero, small{}, false
 }
 
 // noteVariables returns a number that changes whenever the evaluated variable
@@ -296,8 +327,8 @@ func (r *Result) evaluateFields() {
 				r.nodeProblem(n, -1, "", "an end node cannot have branches")
 				r.broken[i] = true
 			}
-			v, ok := r.evalField(&n.payoffF, n.Payoff, n, -1, "payoff")
-			r.payoff[i] = v
+			v, sv, ok := r.evalField(&n.payoffF, n.Payoff, n, -1, "payoff")
+			r.payoff[i], r.payoffS[i] = v, sv
 			r.broken[i] = r.broken[i] || !ok
 			continue
 		case Decision, Chance:
@@ -319,8 +350,8 @@ func (r *Result) evaluateFields() {
 				r.nodeProblem(n, bi, "", "the branch leads nowhere")
 				r.broken[i] = true
 			}
-			v, ok := r.evalField(&b.cashF, b.Cash, n, bi, "cash")
-			r.cash[i][bi] = v
+			v, sv, ok := r.evalField(&b.cashF, b.Cash, n, bi, "cash")
+			r.cashOf(i)[bi], r.cashSOf(i)[bi] = v, sv
 			r.broken[i] = r.broken[i] || !ok
 		}
 		if n.Kind == Decision {
@@ -369,7 +400,8 @@ func (r *Result) reuseProbabilities(n *Node) bool {
 			return false
 		}
 	}
-	copy(r.prob[n.index], c.probs)
+	copy(r.probsOf(n.index), c.probs)
+	copy(r.probSOf(n.index), c.smalls)
 	return true
 }
 
@@ -388,7 +420,8 @@ func (r *Result) rememberProbabilities(n *Node, ok bool) {
 		f, _ := b.probF.get(b.Probability)
 		c.formulas = append(c.formulas, f)
 	}
-	c.probs = append(c.probs[:0], r.prob[n.index]...)
+	c.probs = append(c.probs[:0], r.probsOf(n.index)...)
+	c.smalls = append(c.smalls[:0], r.probSOf(n.index)...)
 	c.gen = r.varsGen
 	c.valid = true
 }
@@ -413,7 +446,7 @@ func (r *Result) checkProbabilities(n *Node) bool {
 			ok = false
 			continue
 		}
-		v, good := r.evalField(&b.probF, b.Probability, n, bi, "probability")
+		v, sv, good := r.evalField(&b.probF, b.Probability, n, bi, "probability")
 		if !good {
 			ok = false
 			continue
@@ -422,7 +455,7 @@ func (r *Result) checkProbabilities(n *Node) bool {
 			r.nodeProblem(n, bi, "probability", fmt.Sprintf("%s is outside 0 to 1", v.String()))
 			ok = false
 		}
-		r.prob[i][bi] = v
+		r.probsOf(i)[bi], r.probSOf(i)[bi] = v, sv
 		sum = sum.Add(v)
 	}
 	if !ok {
@@ -434,7 +467,7 @@ func (r *Result) checkProbabilities(n *Node) bool {
 			r.nodeProblem(n, rest, "probability", fmt.Sprintf("the other branches already add up to %s, so rest would be negative", sum.String()))
 			return false
 		}
-		r.prob[i][rest] = left
+		r.probsOf(i)[rest], r.probSOf(i)[rest] = left, smallOf(left)
 		return true
 	}
 	if !sum.Equal(one) {
@@ -453,7 +486,7 @@ func (r *Result) rollBack() {
 		n := r.Nodes[i]
 		if n.Kind == End {
 			r.value[i] = r.payoff[i]
-			fast[i] = smallOf(r.payoff[i])
+			fast[i] = r.payoffS[i]
 			continue
 		}
 		for _, b := range n.Branches {
@@ -472,7 +505,7 @@ func (r *Result) rollBack() {
 			}
 			sum := decimal.Zero
 			for bi, b := range n.Branches {
-				p := r.prob[i][bi]
+				p := r.probsOf(i)[bi]
 				if p.IsZero() {
 					continue
 				}
@@ -486,7 +519,8 @@ func (r *Result) rollBack() {
 		case Decision:
 			best, ties, bestS, ok := r.decideFast(i, n, fast, maximize)
 			if ok {
-				r.choice[i], r.ties[i], fast[i], r.value[i] = best, ties, bestS, bestS.dec()
+				r.choice[i], fast[i], r.value[i] = best, bestS, bestS.dec()
+				r.setTies(i, ties)
 				continue
 			}
 			var bestV decimal.Decimal
@@ -502,7 +536,8 @@ func (r *Result) rollBack() {
 					best, bestV, ties = bi, v, nil
 				}
 			}
-			r.choice[i], r.value[i], r.ties[i], fast[i] = best, bestV, ties, smallOf(bestV)
+			r.choice[i], r.value[i], fast[i] = best, bestV, smallOf(bestV)
+			r.setTies(i, ties)
 		}
 	}
 }
@@ -514,7 +549,7 @@ func (r *Result) decideFast(i int, n *Node, fast []small, maximize bool) (int, [
 	var bestS small
 	var ties []int
 	for bi, b := range n.Branches {
-		vs := fast[b.To.index].add(smallOf(r.cash[i][bi]))
+		vs := fast[b.To.index].add(r.cashSOf(i)[bi])
 		if !vs.ok {
 			return 0, nil, small{}, false
 		}
@@ -541,12 +576,12 @@ func (r *Result) decideFast(i int, n *Node, fast []small, maximize bool) (int, [
 func (r *Result) chanceFast(i int, n *Node, fast []small) (small, bool) {
 	acc := small{ok: true}
 	for bi, b := range n.Branches {
-		p := r.prob[i][bi]
+		p := r.probsOf(i)[bi]
 		if p.IsZero() {
 			continue
 		}
-		v := fast[b.To.index].add(smallOf(r.cash[i][bi]))
-		acc = acc.add(smallOf(p).mul(v))
+		v := fast[b.To.index].add(r.cashSOf(i)[bi])
+		acc = acc.add(r.probSOf(i)[bi].mul(v))
 		if !acc.ok {
 			return acc, false
 		}
@@ -561,7 +596,7 @@ func (r *Result) owns(c *Node, i int) bool {
 
 func (r *Result) branchValue(i, bi int, b *Branch) decimal.Decimal {
 	v := r.value[b.To.index]
-	if c := r.cash[i][bi]; !c.IsZero() {
+	if c := r.cashOf(i)[bi]; !c.IsZero() {
 		v = v.Add(c)
 	}
 	return v
@@ -598,7 +633,7 @@ func (r *Result) evaluateRisk() {
 			continue
 		}
 		branchCE := func(bi int, b *Branch) float64 {
-			return ce[b.To.index] + sign*r.cash[i][bi].InexactFloat64()
+			return ce[b.To.index] + sign*r.cashOf(i)[bi].InexactFloat64()
 		}
 		switch n.Kind {
 		case End:
@@ -607,7 +642,7 @@ func (r *Result) evaluateRisk() {
 			terms = terms[:0]
 			ps := make([]float64, 0, len(n.Branches))
 			for bi, b := range n.Branches {
-				p := r.prob[i][bi].InexactFloat64()
+				p := r.probsOf(i)[bi].InexactFloat64()
 				if p == 0 {
 					continue
 				}
@@ -626,7 +661,8 @@ func (r *Result) evaluateRisk() {
 					ties = append(ties, bi)
 				}
 			}
-			r.choice[i], r.ties[i] = best, ties
+			r.choice[i] = best
+			r.setTies(i, ties)
 			// The EV shown at a decision is that of the branch chosen under the attitude.
 			r.value[i] = r.branchValue(i, best, n.Branches[best])
 		}
@@ -647,7 +683,7 @@ func (r *Result) reRollChance() {
 		case Chance:
 			sum := decimal.Zero
 			for bi, b := range n.Branches {
-				if p := r.prob[i][bi]; !p.IsZero() {
+				if p := r.probsOf(i)[bi]; !p.IsZero() {
 					sum = sum.Add(p.Mul(r.branchValue(i, bi, b)))
 				}
 			}
@@ -772,18 +808,18 @@ func (r *Result) computeForward() {
 		var cash, prob decimal.Decimal
 		hasCash, hasProb := false, false
 		if pn.Kind == Decision || pn.Kind == Chance {
-			cash = r.cash[pi][bi]
+			cash = r.cashOf(pi)[bi]
 			hasCash = !cash.IsZero()
 		}
 		if pn.Kind == Chance {
-			prob, hasProb = r.prob[pi][bi], true
+			prob, hasProb = r.probsOf(pi)[bi], true
 		}
 		sv[i], sp[i] = sv[pi], sp[pi]
 		if hasCash {
-			sv[i] = sv[pi].add(smallOf(cash))
+			sv[i] = sv[pi].add(r.cashSOf(pi)[bi])
 		}
 		if hasProb {
-			sp[i] = sp[pi].mul(smallOf(prob))
+			sp[i] = sp[pi].mul(r.probSOf(pi)[bi])
 		}
 		if sv[i].ok {
 			r.pathValue[i] = sv[i].dec()
@@ -806,7 +842,7 @@ func (r *Result) computeForward() {
 	}
 	for i, n := range r.Nodes {
 		if n.Kind == End {
-			if s := sv[i].add(smallOf(r.payoff[i])); s.ok {
+			if s := sv[i].add(r.payoffS[i]); s.ok {
 				r.pathValue[i] = s.dec()
 			} else {
 				r.pathValue[i] = r.pathValue[i].Add(r.payoff[i])

@@ -319,3 +319,20 @@ func TestReEvaluationFollowsEveryChange(t *testing.T) {
 		assert.Equal(t, s.want, r.ValueOf(p.Root).String(), "step %d", i)
 	}
 }
+
+func TestDuplicateIDsAreFoundAfterEdits(t *testing.T) {
+	p := settlementTree()
+	require.True(t, engine.Evaluate(p).Valid())
+	require.True(t, engine.Evaluate(p).Valid()) // the quick re-check path
+	p.FindNode("accept3").ID = "accept2"
+	r := engine.Evaluate(p)
+	require.Len(t, r.Problems, 1)
+	assert.Equal(t, `node "accept2" id: the id is used by another node`, r.Problems[0].Msg)
+	p.FindNode("first").Branches[0].To = &engine.Node{ID: "accept2", Kind: engine.End, Payoff: "2"} // a new node, same count
+	p.FindNode("second").Branches[0].To.ID = "accept3"
+	r = engine.Evaluate(p)
+	assert.Len(t, r.Problems, 0)
+	p.FindNode("second").Branches[0].To = &engine.Node{ID: "accept2", Kind: engine.End, Payoff: "3"}
+	r = engine.Evaluate(p)
+	require.Len(t, r.Problems, 1)
+}

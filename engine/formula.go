@@ -38,6 +38,7 @@ type Formula struct {
 	names    []string // variable names used, in order of first use
 	constant bool
 	cval     decimal.Decimal // value when constant
+	csmall   small           // its int64 form, for the roll-back
 }
 
 // Env gives the value of a variable.
@@ -94,7 +95,7 @@ func ParseFormula(src string) (*Formula, error) {
 		if err != nil {
 			return nil, err
 		}
-		f.constant, f.cval = true, v
+		f.constant, f.cval, f.csmall = true, v, smallOf(v)
 	}
 	return f, nil
 }
@@ -733,12 +734,13 @@ func init() {
 
 // cachedFormula keeps a field's compiled formula until its text changes.
 type cachedFormula struct {
-	src string
-	f   *Formula
-	err error
-	set bool
-	val decimal.Decimal // last value, valid for variable generation gen (0: none)
-	gen uint64
+	src  string
+	f    *Formula
+	err  error
+	set  bool
+	val  decimal.Decimal // last value, valid for variable generation gen (0: none)
+	sval small
+	gen  uint64
 }
 
 func (c *cachedFormula) get(src string) (*Formula, error) {

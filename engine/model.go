@@ -32,10 +32,10 @@ type Project struct {
 	Risk       RiskAttitude
 	Root       *Node
 
-	sizeHint int              // node count at the last evaluation, to size slices
-	idCache  map[string]*Node // ids of the last evaluation, when all were unique
-	varsGen  uint64           // see noteVariables
-	lastVars MapEnv
+	sizeHint   int    // node count at the last evaluation, to size slices
+	idsChecked int    // node count when the ids were last found unique, -1 when not
+	varsGen    uint64 // see noteVariables
+	lastVars   MapEnv
 }
 
 // RiskAttitude is the project's stated attitude to risk.
@@ -103,6 +103,8 @@ type Node struct {
 	payoffF cachedFormula
 	index   int    // position in the last evaluation's preorder; see Evaluate
 	stamp   uint64 // last evaluation that visited the node
+	// checkedID is the id the node had when the ids were last found unique.
+	checkedID string
 
 	probCheck probabilityCheck
 }
@@ -202,7 +204,7 @@ func (o Objective) Better(a, b float64) bool {
 // so the copy can be evaluated on another goroutine.
 func (p *Project) Clone() *Project {
 	c := *p
-	c.idCache, c.sizeHint, c.varsGen, c.lastVars = nil, 0, 0, nil
+	c.idsChecked, c.sizeHint, c.varsGen, c.lastVars = 0, 0, 0, nil
 	c.Variables = make([]*Variable, len(p.Variables))
 	for i, v := range p.Variables {
 		c.Variables[i] = v.Clone()
@@ -259,4 +261,5 @@ type probabilityCheck struct {
 	gen      uint64     // variable generation the probabilities were computed under
 	formulas []*Formula // nil for the rest branch
 	probs    []Decimal
+	smalls   []small
 }

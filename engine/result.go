@@ -19,13 +19,16 @@ type Result struct {
 	value        []decimal.Decimal // expected value of the subtree at each node
 	ce           []decimal.Decimal // certainty equivalent (risk attitude active only)
 	choice       []int             // chosen branch at decisions, -1 elsewhere
-	ties         [][]int           // other branches tied with the choice
+	ties         map[int][]int     // other branches tied with the choice, by node
 	onPolicy     []bool            // reached when following the recommended choices
 	pathValue    []decimal.Decimal // cash from the root to the node (plus payoff at ends)
 	pathProb     []decimal.Decimal // product of chance probabilities from the root
 	payoff       []decimal.Decimal // end payoff as evaluated
-	prob         [][]decimal.Decimal
-	cash         [][]decimal.Decimal
+	probFlat     []decimal.Decimal // branch probabilities, node i at first[i]:first[i+1]
+	cashFlat     []decimal.Decimal
+	first        []int32
+	probS, cashS []small // int64 forms of the above, for the roll-back's fast path
+	payoffS      []small
 	broken       []bool  // node's own fields or subtree could not be evaluated
 	parent       []int32 // parent index, -1 at the root
 	parentBranch []int32
@@ -109,18 +112,18 @@ func (r *Result) Broken(n *Node) bool { return r.has(n) && r.broken[n.index] }
 
 // Probability is the evaluated probability of branch i of n ("rest" resolved).
 func (r *Result) Probability(n *Node, i int) decimal.Decimal {
-	if !r.has(n) || i < 0 || i >= len(r.prob[n.index]) {
+	if !r.has(n) || i < 0 || i >= len(r.probsOf(n.index)) {
 		return decimal.Zero
 	}
-	return r.prob[n.index][i]
+	return r.probsOf(n.index)[i]
 }
 
 // Cash is the evaluated cash of branch i of n.
 func (r *Result) Cash(n *Node, i int) decimal.Decimal {
-	if !r.has(n) || i < 0 || i >= len(r.cash[n.index]) {
+	if !r.has(n) || i < 0 || i >= len(r.cashOf(n.index)) {
 		return decimal.Zero
 	}
-	return r.cash[n.index][i]
+	return r.cashOf(n.index)[i]
 }
 
 // Payoff is the evaluated payoff of an end node.
