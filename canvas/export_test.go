@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/xml"
 	"errors"
+	"image/color"
 	"image/png"
 	"io"
 	"math"
@@ -422,3 +423,32 @@ func TestExportAnyTextAnyDepth(t *testing.T) {
 	require.Error(t, err, "thousands of pages are refused")
 	assert.Contains(t, err.Error(), "pages")
 }
+
+// benchPDF measures writePDF alone (layout done once): the drawing and the
+// PDF encoding, with the file size per export.
+func benchPDF(b *testing.B, n int, tile bool) {
+	p, r := benchTree(b, n)
+	opts := DefaultOptions()
+	l := LayoutTree(p, r, FontMeasurer{}, opts)
+	eo := ExportOptions{Page: "A3", Landscape: true, Tile: tile, Date: fixedDate}
+	bg := color.NRGBA{0xff, 0xff, 0xff, 0xff}
+	var size int64
+	b.ResetTimer()
+	start := cpuTime()
+	for b.Loop() {
+		cw := &byteCounter{}
+		if err := writePDF(cw, p, r, l, opts, eo, bg); err != nil {
+			b.Fatal(err)
+		}
+		size = cw.n
+	}
+	reportCPU(b, start)
+	b.ReportMetric(float64(size), "bytes")
+}
+
+type byteCounter struct{ n int64 }
+
+func (c *byteCounter) Write(p []byte) (int, error) { c.n += int64(len(p)); return len(p), nil }
+
+func BenchmarkPDFFit1k(b *testing.B)   { benchPDF(b, 1000, false) }
+func BenchmarkPDFTiles1k(b *testing.B) { benchPDF(b, 1000, true) }

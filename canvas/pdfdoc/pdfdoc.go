@@ -89,6 +89,7 @@ func New(w, h vg.Length, info Info) *Canvas {
 		doc.SetModificationDate(info.Date)
 	}
 	doc.SetAutoPageBreak(false, 0)
+	doc.SetCatalogSort(true) // fonts in a stable order: same drawing and date, same bytes
 	return &Canvas{doc: doc, w: w, h: h, stack: make([]context, 1), fonts: map[font.Font]*embedded{}}
 }
 

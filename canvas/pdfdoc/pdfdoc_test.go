@@ -198,3 +198,20 @@ func TestMissingGlyphsKeepTheRestInPlace(t *testing.T) {
 	}
 	find(t, ws, "\uFFFD") // astral runes are written as U+FFFD
 }
+
+func TestSameDrawingSameBytes(t *testing.T) {
+	draw := func() []byte {
+		c := New(vg.Points(200), vg.Points(100), Info{Title: "t", Date: time.Date(2026, 3, 14, 0, 0, 0, 0, time.UTC)})
+		c.NextPage()
+		c.FillString(face(10, false), vg.Point{X: 10, Y: 50}, "regular −1")
+		c.FillString(face(10, true), vg.Point{X: 10, Y: 20}, "bold ×2")
+		var buf bytes.Buffer
+		_, err := c.WriteTo(&buf)
+		require.NoError(t, err)
+		return buf.Bytes()
+	}
+	first := draw()
+	for range 5 {
+		assert.True(t, bytes.Equal(first, draw()), "a fixed date gives a reproducible file")
+	}
+}
