@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/xml"
 	"errors"
+	"image/color"
 	"image/png"
 	"io"
 	"math"
@@ -17,11 +18,11 @@ import (
 	"time"
 
 	"gonum.org/v1/plot/vg"
-	"gonum.org/v1/plot/vg/vgpdf"
 
 	"github.com/stretchr/testify/assert"
 	"github.com/stretchr/testify/require"
 
+	"github.com/ramify-app/ramify/canvas/pdfdoc"
 	"github.com/ramify-app/ramify/engine"
 )
 
@@ -193,9 +194,103 @@ func TestExportPDF(t *testing.T) {
 		path := filepath.Join(dir, "unicode.pdf")
 		require.NoError(t, Export(q, engine.Evaluate(q), path, ExportOptions{Date: fixedDate}))
 		text := pdfText(t, path)
-		assert.Contains(t, text, "Zürich – €5 “déjà vu”", "Windows-1252 text survives")
-		assert.Contains(t, text, "Coût - ?? ? “quoted”", "other scripts become '?' rather than garbage")
+		assert.Contains(t, text, "Zürich – €5 “déjà vu”")
+		assert.Contains(t, text, "Coût − 東京", "Unicode fonts: no more Windows-1252 '?' or '-'")
+		assert.Contains(t, text, "“quoted”", "the text after an emoji is still there")
 	})
+}
+
+// negativeProject is a small invented tree whose values are mostly negative.
+func negativeProject() *engine.Project {
+	end := func(id, payoff string) *engine.Node { return &engine.Node{ID: id, Kind: engine.End, Payoff: payoff} }
+	season := &engine.Node{ID: "season", Kind: engine.Chance, Name: "Footfall", Branches: []*engine.Branch{
+		{Label: "Busy summer", Probability: "0.35", To: end("busy", "21474.50")},
+		{Label: "Washed-out summer", Probability: "rest", To: end("wet", "-7411.75")},
+	}}
+	root := &engine.Node{ID: "choice", Kind: engine.Decision, Name: "Kiosk lease", Branches: []*engine.Branch{
+		{Label: "Sign the 11-month lease", Cash: "-11111.11", To: season},
+		{Label: "Walk away", To: end("walk", "-1234.56")},
+	}}
+	return &engine.Project{Title: "Pop-up kiosk AVAWAY 11,111", Currency: "EUR", Decimals: 2, Root: root}
+}
+
+func TestExportPDFUnicodeValues(t *testing.T) {
+	havePoppler(t)
+	p := negativeProject()
+	r := engine.Evaluate(p)
+	require.Empty(t, r.Problems)
+	dir := t.TempDir()
+	for _, tile := range []bool{false, true} {
+		path := filepath.Join(dir, "neg-"+strconv.FormatBool(tile)+".pdf")
+		require.NoError(t, Export(p, r, path, ExportOptions{Tile: tile, Date: fixedDate}))
+		text := pdfText(t, path)
+		var want []string
+		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+			v := r.ValueOf(n)
+			if n.Kind == engine.End {
+				v = r.PathValue(n)
+			}
+			want = append(want, engine.FormatValue(v, p.Decimals, p.Currency))
+			for i, b := range n.Branches {
+				if b.Cash != "" {
+					want = append(want, engine.FormatValue(r.Cash(n, i), p.Decimals, p.Currency))
+				}
+			}
+			return true
+		})
+		// Hand arithmetic: the wet path is −7,411.75 − 11,111.11; the chance
+		// node is 0.35 × 21,474.50 + 0.65 × (−7,411.75) = 2,698.4375.
+		assert.Subset(t, want, []string{"−18,522.86 EUR", "2,698.44 EUR", "−1,234.56 EUR", "−11,111.11 EUR"})
+		for _, v := range want {
+			assert.Contains(t, text, v, "tile=%v: the value exactly as FormatValue prints it", tile)
+			if strings.HasPrefix(v, "−") {
+				assert.NotContains(t, text, "-"+strings.TrimPrefix(v, "−"), "no hyphen stands in for the minus sign")
+			}
+		}
+		assert.Contains(t, text, "−", "U+2212 MINUS SIGN")
+	}
+}
+
+var bboxWord = regexp.MustCompile(`<word xMin="([\d.]+)" yMin="[\d.]+" xMax="([\d.]+)" yMax="[\d.]+">([^<]*)</word>`)
+
+// The PDF embeds the faces FontMeasurer measures with: poppler, laying the
+// words out from the embedded fonts' own widths, finds them exactly as wide
+// as the layout measured them (kerning included), and right-aligned text
+// ends on the margin.
+func TestExportPDFTextIsAsWideAsMeasured(t *testing.T) {
+	havePoppler(t)
+	p := negativeProject()
+	r := engine.Evaluate(p)
+	path := filepath.Join(t.TempDir(), "widths.pdf")
+	require.NoError(t, Export(p, r, path, ExportOptions{Date: fixedDate}))
+	out, err := exec.Command("pdftotext", "-bbox", path, "-").CombinedOutput()
+	require.NoError(t, err, "%s", out)
+	boxes := map[string][2]float64{}
+	for _, m := range bboxWord.FindAllStringSubmatch(string(out), -1) {
+		x0, _ := strconv.ParseFloat(m[1], 64)
+		x1, _ := strconv.ParseFloat(m[2], 64)
+		boxes[m[3]] = [2]float64{x0, x1}
+	}
+	th := LightTheme()
+	pw, _, _ := PageSize("A4", false)
+	tests := []struct {
+		word string
+		size float64
+		bold bool
+	}{
+		{"AVAWAY", th.TitleSize, true}, // heavily kerned
+		{"11,111", th.TitleSize, true},
+		{"Pop-up", th.TitleSize, true},
+		{"2026", th.NoteSize * 1.2, false},
+	}
+	for _, tc := range tests {
+		b, ok := boxes[tc.word]
+		require.True(t, ok, "%q in %v", tc.word, boxes)
+		want := FontMeasurer{}.TextWidth(tc.word, tc.size, tc.bold)
+		assert.InDelta(t, want, b[1]-b[0], 0.002*tc.size*float64(len(tc.word)), "%q", tc.word)
+	}
+	assert.InDelta(t, pw-pageMargin, boxes["2026"][1], 0.05, "the right-aligned date ends on the margin")
+	assert.Contains(t, boxes, "Walk")
 }
 
 func TestDrawTreeIntoReportCanvas(t *testing.T) {
@@ -290,10 +385,11 @@ func TestExportKeepsOldFileOnFailure(t *testing.T) {
 	assert.Equal(t, "previous export", string(data))
 }
 
-// drawTreePage is how the report uses DrawTree: its own vgpdf page, the tree in
-// the lower two thirds.
+// drawTreePage is how the report uses DrawTree: its own pdfdoc page, the tree
+// in the lower two thirds.
 func drawTreePage(w io.Writer, p *engine.Project, r *engine.Result) error {
-	c := vgpdf.New(vg.Length(595), vg.Length(842))
+	c := pdfdoc.New(vg.Length(595), vg.Length(842), pdfdoc.Info{})
+	c.NextPage()
 	rect := vg.Rectangle{Min: vg.Point{X: 40, Y: 40}, Max: vg.Point{X: 555, Y: 560}}
 	if err := DrawTree(c, rect, p, r, DefaultOptions()); err != nil {
 		return err
@@ -327,3 +423,32 @@ func TestExportAnyTextAnyDepth(t *testing.T) {
 	require.Error(t, err, "thousands of pages are refused")
 	assert.Contains(t, err.Error(), "pages")
 }
+
+// benchPDF measures writePDF alone (layout done once): the drawing and the
+// PDF encoding, with the file size per export.
+func benchPDF(b *testing.B, n int, tile bool) {
+	p, r := benchTree(b, n)
+	opts := DefaultOptions()
+	l := LayoutTree(p, r, FontMeasurer{}, opts)
+	eo := ExportOptions{Page: "A3", Landscape: true, Tile: tile, Date: fixedDate}
+	bg := color.NRGBA{0xff, 0xff, 0xff, 0xff}
+	var size int64
+	b.ResetTimer()
+	start := cpuTime()
+	for b.Loop() {
+		cw := &byteCounter{}
+		if err := writePDF(cw, p, r, l, opts, eo, bg); err != nil {
+			b.Fatal(err)
+		}
+		size = cw.n
+	}
+	reportCPU(b, start)
+	b.ReportMetric(float64(size), "bytes")
+}
+
+type byteCounter struct{ n int64 }
+
+func (c *byteCounter) Write(p []byte) (int, error) { c.n += int64(len(p)); return len(p), nil }
+
+func BenchmarkPDFFit1k(b *testing.B)   { benchPDF(b, 1000, false) }
+func BenchmarkPDFTiles1k(b *testing.B) { benchPDF(b, 1000, true) }

@@ -8,8 +8,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/plot/vg"
-	"gonum.org/v1/plot/vg/vgpdf"
 
+	"github.com/ramify-app/ramify/canvas/pdfdoc"
 	"github.com/ramify-app/ramify/engine"
 )
 
@@ -86,17 +86,17 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 	if len(plan.tiles) > maxPDFPages {
 		return fmt.Errorf("the tree would need %d pages (%d × %d); fit it on one page or choose a larger page", len(plan.tiles), plan.rows, plan.cols)
 	}
-	c := vgpdf.New(vg.Length(pw), vg.Length(ph))
-	c.EmbedFonts(true)
+	title := eo.title(p)
+	// pdfdoc embeds the very Liberation Sans faces FontMeasurer measured the
+	// layout with, as Unicode fonts, and kerns as the measurer does.
+	c := pdfdoc.New(vg.Length(pw), vg.Length(ph), pdfdoc.Info{Title: title, Date: eo.Date})
 	pageRect := vg.Rectangle{Max: vg.Point{X: vg.Length(pw), Y: vg.Length(ph)}}
 	for i, tile := range plan.tiles {
-		if i > 0 {
-			c.NextPage()
-		}
+		c.NextPage()
 		fillRect(c, pageRect, bg)
 		s := Build(p, r, l, opts, tile)
 		m := vgMap{vx: tile.X, vy: tile.Y, left: plan.area.X, top: ph - plan.area.Y, k: plan.k}
-		drawVG(c, s, m, true)
+		drawVG(c, s, m, false)
 		// Mask what spilled past the content area (vg has no clipping).
 		a := plan.area
 		fillRect(c, vg.Rectangle{Max: vg.Point{X: vg.Length(pw), Y: vg.Length(ph - a.Y - a.H)}}, bg)
@@ -108,52 +108,10 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 		if len(plan.tiles) > 1 {
 			label += fmt.Sprintf(" · row %d, column %d", i/plan.cols+1, i%plan.cols+1)
 		}
-		hs := &Scene{Theme: th, Prims: headerPrims(&th, Rect{pageMargin, pageMargin, pw - 2*pageMargin, header}, eo.title(p), eo.dateText(), label)}
+		hs := &Scene{Theme: th, Prims: headerPrims(&th, Rect{pageMargin, pageMargin, pw - 2*pageMargin, header}, title, eo.dateText(), label)}
 		hs.Prims = append(hs.Prims, footerPrims(&th, pageMargin, ph-pageMargin-footer+6, pw-2*pageMargin)...)
-		drawVG(c, hs, vgMap{left: 0, top: ph, k: 1}, true)
+		drawVG(c, hs, vgMap{left: 0, top: ph, k: 1}, false)
 	}
 	_, err := c.WriteTo(w)
 	return err
-}
-
-// toCP1252 maps text to the Windows-1252 bytes vgpdf's embedded fonts use.
-// Runes outside that code page become '?', except the true minus sign of our
-// number format, which becomes a hyphen-minus.
-func toCP1252(s string) string {
-	ascii := true
-	for i := 0; i < len(s); i++ {
-		if s[i] >= 0x80 {
-			ascii = false
-			break
-		}
-	}
-	if ascii {
-		return s
-	}
-	b := make([]byte, 0, len(s))
-	for _, r := range s {
-		switch {
-		case r < 0x80:
-			b = append(b, byte(r))
-		case r >= 0xA0 && r <= 0xFF:
-			b = append(b, byte(r))
-		case r == '−':
-			b = append(b, '-')
-		default:
-			if c, ok := cp1252High[r]; ok {
-				b = append(b, c)
-			} else {
-				b = append(b, '?')
-			}
-		}
-	}
-	return string(b)
-}
-
-// cp1252High is the 0x80–0x9F block of Windows-1252.
-var cp1252High = map[rune]byte{
-	'€': 0x80, '‚': 0x82, 'ƒ': 0x83, '„': 0x84, '…': 0x85, '†': 0x86, '‡': 0x87,
-	'ˆ': 0x88, '‰': 0x89, 'Š': 0x8A, '‹': 0x8B, 'Œ': 0x8C, 'Ž': 0x8E, '‘': 0x91,
-	'’': 0x92, '“': 0x93, '”': 0x94, '•': 0x95, '–': 0x96, '—': 0x97, '˜': 0x98,
-	'™': 0x99, 'š': 0x9A, '›': 0x9B, 'œ': 0x9C, 'ž': 0x9E, 'Ÿ': 0x9F,
 }

@@ -6,18 +6,17 @@ import (
 	"image/color"
 	"math"
 
-	stdfont "golang.org/x/image/font"
 	"gonum.org/v1/plot/vg"
-	"gonum.org/v1/plot/vg/vgpdf"
 
 	"github.com/ramify-app/ramify/engine"
 )
 
-// PDF and PNG are drawn through gonum/plot's vg back-ends (vgpdf, vgimg): one
-// drawing routine below serves both, they embed the same Liberation Sans the
-// layout measured with, and vgpdf gives real text that pdftotext and screen
-// readers can find. vg.Canvas is also what the report (a plot-based PDF) draws
-// on, so the tree can be placed into a report page with DrawTree.
+// PDF and PNG are drawn through gonum/plot's vg.Canvas (canvas/pdfdoc for PDF,
+// vgimg for PNG): one drawing routine below serves both, they draw with the
+// same Liberation Sans faces the layout measured with, and the PDF carries
+// real Unicode text that pdftotext and screen readers can find. The report
+// draws on the same pdfdoc canvas, so the tree can be placed into a report
+// page with DrawTree or Diagram.
 
 // vgMap maps scene coordinates (y down) into a vg canvas region (y up).
 type vgMap struct {
@@ -31,8 +30,10 @@ func (m vgMap) pt(p Point) vg.Point {
 	return vg.Point{X: vg.Length(m.left + (p.X-m.vx)*m.k), Y: vg.Length(m.top - (p.Y-m.vy)*m.k)}
 }
 
-// drawVG draws every primitive of s on c. forPDF adapts text and faces to vgpdf.
-func drawVG(c vg.Canvas, s *Scene, m vgMap, forPDF bool) {
+// drawVG draws every primitive of s on c. The last argument is no longer used:
+// it adapted text to vgpdf's Windows-1252 fonts before PDFs moved to pdfdoc,
+// and stays only so the callers outside the PDF code need no change.
+func drawVG(c vg.Canvas, s *Scene, m vgMap, _ bool) {
 	th := &s.Theme
 	for i := range s.Prims {
 		p := &s.Prims[i]
@@ -91,19 +92,8 @@ func drawVG(c vg.Canvas, s *Scene, m vgMap, forPDF bool) {
 			case AlignRight:
 				at.X -= vg.Length(w)
 			}
-			s := p.Text
-			if forPDF {
-				s = toCP1252(s)
-				if p.Bold {
-					// vgpdf registers each face under its own name and then asks
-					// for style "B" on top, which it cannot find; present the bold
-					// face as a regular face of its own typeface instead.
-					face.Font.Weight = stdfont.WeightNormal
-					face.Font.Typeface = "LiberationBold"
-				}
-			}
 			c.SetColor(col)
-			c.FillString(face, at, s)
+			c.FillString(face, at, p.Text)
 		}
 	}
 }
@@ -173,18 +163,19 @@ func NewDiagram(p *engine.Project, r *engine.Result, theme string) (*Diagram, er
 func (d *Diagram) Size() (w, h vg.Length) { return vg.Length(d.bounds.W), vg.Length(d.bounds.H) }
 
 // Draw draws the whole diagram scaled by k with its top-left corner at
-// topLeft (vg coordinates, y up). It uses no canvas transforms.
+// topLeft (vg coordinates, y up). It uses no canvas transforms. For a PDF,
+// draw on a pdfdoc.Canvas: gonum's vgpdf has only Windows-1252 fonts and
+// cannot find the bold face by the name the diagram asks for.
 func (d *Diagram) Draw(c vg.Canvas, topLeft vg.Point, k float64) error {
 	if k <= 0 || math.IsNaN(k) || math.IsInf(k, 0) {
 		return fmt.Errorf("tree diagram: scale %v must be positive", k)
 	}
-	_, isPDF := c.(*vgpdf.Canvas)
-	drawVG(c, d.scene, vgMap{vx: d.bounds.X, vy: d.bounds.Y, left: float64(topLeft.X), top: float64(topLeft.Y), k: k}, isPDF)
+	drawVG(c, d.scene, vgMap{vx: d.bounds.X, vy: d.bounds.Y, left: float64(topLeft.X), top: float64(topLeft.Y), k: k}, false)
 	return nil
 }
 
 // DrawTree draws the tree of p (with the values of r, which may be nil) into
-// rect of any vg canvas, scaled down to fit and placed at the rect's top left.
+// rect of a vg canvas (pdfdoc for PDF, see Diagram.Draw), scaled down to fit and placed at the rect's top left.
 // The report uses it (or Diagram) to put the tree on a page of its own PDF.
 func DrawTree(c vg.Canvas, rect vg.Rectangle, p *engine.Project, r *engine.Result, opts Options) error {
 	if p == nil || p.Root == nil {
