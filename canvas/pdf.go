@@ -96,7 +96,7 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 		fillRect(c, pageRect, bg)
 		s := Build(p, r, l, opts, tile)
 		m := vgMap{vx: tile.X, vy: tile.Y, left: plan.area.X, top: ph - plan.area.Y, k: plan.k}
-		drawVG(c, s, m, false)
+		drawVG(c, s, m)
 		// Mask what spilled past the content area (vg has no clipping).
 		a := plan.area
 		fillRect(c, vg.Rectangle{Max: vg.Point{X: vg.Length(pw), Y: vg.Length(ph - a.Y - a.H)}}, bg)
@@ -110,7 +110,7 @@ func writePDF(w io.Writer, p *engine.Project, r *engine.Result, l *Layout, opts 
 		}
 		hs := &Scene{Theme: th, Prims: headerPrims(&th, Rect{pageMargin, pageMargin, pw - 2*pageMargin, header}, title, eo.dateText(), label)}
 		hs.Prims = append(hs.Prims, footerPrims(&th, pageMargin, ph-pageMargin-footer+6, pw-2*pageMargin)...)
-		drawVG(c, hs, vgMap{left: 0, top: ph, k: 1}, false)
+		drawVG(c, hs, vgMap{left: 0, top: ph, k: 1})
 	}
 	_, err := c.WriteTo(w)
 	return err

@@ -31,7 +31,7 @@ func writePNG(w io.Writer, s *Scene, margin float64, dpi int, bg color.NRGBA) er
 	// Round the drawing up to whole pixels so the image is exactly pw × ph.
 	wpt, hpt := float64(pw)*72/float64(dpi), float64(ph)*72/float64(dpi)
 	c := vgimg.NewWith(vgimg.UseWH(vg.Length(wpt), vg.Length(hpt)), vgimg.UseDPI(dpi), vgimg.UseBackgroundColor(bg))
-	drawVG(c, s, vgMap{vx: vp.X - margin, vy: vp.Y - margin, left: 0, top: hpt, k: 1}, false)
+	drawVG(c, s, vgMap{vx: vp.X - margin, vy: vp.Y - margin, left: 0, top: hpt, k: 1})
 	_, err := vgimg.PngCanvas{Canvas: c}.WriteTo(w)
 	return err
 }

@@ -33,7 +33,7 @@ func (m vgMap) pt(p Point) vg.Point {
 // drawVG draws every primitive of s on c. The last argument is no longer used:
 // it adapted text to vgpdf's Windows-1252 fonts before PDFs moved to pdfdoc,
 // and stays only so the callers outside the PDF code need no change.
-func drawVG(c vg.Canvas, s *Scene, m vgMap, _ bool) {
+func drawVG(c vg.Canvas, s *Scene, m vgMap) {
 	th := &s.Theme
 	for i := range s.Prims {
 		p := &s.Prims[i]
@@ -170,7 +170,7 @@ func (d *Diagram) Draw(c vg.Canvas, topLeft vg.Point, k float64) error {
 	if k <= 0 || math.IsNaN(k) || math.IsInf(k, 0) {
 		return fmt.Errorf("tree diagram: scale %v must be positive", k)
 	}
-	drawVG(c, d.scene, vgMap{vx: d.bounds.X, vy: d.bounds.Y, left: float64(topLeft.X), top: float64(topLeft.Y), k: k}, false)
+	drawVG(c, d.scene, vgMap{vx: d.bounds.X, vy: d.bounds.Y, left: float64(topLeft.X), top: float64(topLeft.Y), k: k})
 	return nil
 }
 

@@ -605,7 +605,7 @@ func rasterScene(s *Scene, area Rect, zoom float64) (image.Image, error) {
 	}
 	s.Prims = keep
 	c := vgimg.NewWith(vgimg.UseWH(vg.Length(w), vg.Length(h)), vgimg.UseDPI(72), vgimg.UseBackgroundColor(s.Theme.Background))
-	drawVG(c, s, vgMap{vx: area.X, vy: area.Y, left: 0, top: float64(h), k: zoom}, false)
+	drawVG(c, s, vgMap{vx: area.X, vy: area.Y, left: 0, top: float64(h), k: zoom})
 	return c.Image(), nil
 }
 
