@@ -171,6 +171,7 @@ func (r *Result) index() {
 		stack = stack[:len(stack)-1]
 		if n.stamp == stamp {
 			r.nodeProblem(n, -1, "", "this node appears in two places; a tree node has one parent")
+			r.shared = true
 			continue
 		}
 		n.stamp = stamp
@@ -481,7 +482,10 @@ func (r *Result) checkProbabilities(n *Node) bool {
 // every child before its parent, so no recursion is needed at any depth.
 func (r *Result) rollBack() {
 	maximize := r.Project.Objective != Minimize
-	fast := make([]small, len(r.Nodes)) // the int64 form of each value, when it fits
+	// fast holds the int64 form of each value when it fits; the decimal form is
+	// then made only when asked for (see val), which spares an allocation per node.
+	r.valueS = make([]small, len(r.Nodes))
+	fast := r.valueS
 	for i := len(r.Nodes) - 1; i >= 0; i-- {
 		n := r.Nodes[i]
 		if n.Kind == End {
@@ -490,7 +494,7 @@ func (r *Result) rollBack() {
 			continue
 		}
 		for _, b := range n.Branches {
-			if b.To != nil && (!r.owns(b.To, i) || r.broken[b.To.index]) {
+			if b.To != nil && ((r.shared && !r.owns(b.To, i)) || r.broken[b.To.index]) {
 				r.broken[i] = true
 			}
 		}
@@ -500,7 +504,7 @@ func (r *Result) rollBack() {
 		switch n.Kind {
 		case Chance:
 			if acc, ok := r.chanceFast(i, n, fast); ok {
-				fast[i], r.value[i] = acc, acc.dec()
+				fast[i] = acc
 				continue
 			}
 			sum := decimal.Zero
@@ -519,7 +523,7 @@ func (r *Result) rollBack() {
 		case Decision:
 			best, ties, bestS, ok := r.decideFast(i, n, fast, maximize)
 			if ok {
-				r.choice[i], fast[i], r.value[i] = best, bestS, bestS.dec()
+				r.choice[i], fast[i] = best, bestS
 				r.setTies(i, ties)
 				continue
 			}
@@ -589,13 +593,26 @@ func (r *Result) chanceFast(i int, n *Node, fast []small) (small, bool) {
 	return acc, true
 }
 
+// val is node i's value: the int64 form when the roll-back kept one, else the decimal.
+func (r *Result) val(i int) decimal.Decimal {
+	if s := r.valueS[i]; s.ok {
+		return s.dec()
+	}
+	return r.value[i]
+}
+
+// setValue replaces node i's value with a decimal (the risk pass re-rolls chance nodes).
+func (r *Result) setValue(i int, d decimal.Decimal) {
+	r.value[i], r.valueS[i] = d, small{}
+}
+
 // owns reports whether c is the child recorded for parent index i (guards shared nodes).
 func (r *Result) owns(c *Node, i int) bool {
 	return c.index < len(r.Nodes) && r.Nodes[c.index] == c && c.index > i && int(r.parent[c.index]) == i
 }
 
 func (r *Result) branchValue(i, bi int, b *Branch) decimal.Decimal {
-	v := r.value[b.To.index]
+	v := r.val(b.To.index)
 	if c := r.cashOf(i)[bi]; !c.IsZero() {
 		v = v.Add(c)
 	}
@@ -664,7 +681,7 @@ func (r *Result) evaluateRisk() {
 			r.choice[i] = best
 			r.setTies(i, ties)
 			// The EV shown at a decision is that of the branch chosen under the attitude.
-			r.value[i] = r.branchValue(i, best, n.Branches[best])
+			r.setValue(i, r.branchValue(i, best, n.Branches[best]))
 		}
 		r.ce[i] = decimal.NewFromFloat(sign * ce[i])
 	}
@@ -687,10 +704,10 @@ func (r *Result) reRollChance() {
 					sum = sum.Add(p.Mul(r.branchValue(i, bi, b)))
 				}
 			}
-			r.value[i] = sum
+			r.setValue(i, sum)
 		case Decision:
 			if c := r.choice[i]; c >= 0 {
-				r.value[i] = r.branchValue(i, c, n.Branches[c])
+				r.setValue(i, r.branchValue(i, c, n.Branches[c]))
 			}
 		}
 	}

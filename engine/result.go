@@ -29,10 +29,12 @@ type Result struct {
 	first        []int32
 	probS, cashS []small // int64 forms of the above, for the roll-back's fast path
 	payoffS      []small
+	valueS       []small // int64 form of value where it fits (then value itself is unset)
 	broken       []bool  // node's own fields or subtree could not be evaluated
 	parent       []int32 // parent index, -1 at the root
 	parentBranch []int32
 	forwardOnce  sync.Once
+	shared       bool // some node was reached twice (reported as a problem)
 	varsGen      uint64
 	riskOn       bool
 	tolerance    float64
@@ -63,7 +65,7 @@ func (r *Result) ValueOf(n *Node) decimal.Decimal {
 	if !r.has(n) {
 		return decimal.Zero
 	}
-	return r.value[n.index]
+	return r.val(n.index)
 }
 
 // CertaintyEquivalent is the CE at n when a risk attitude is active; ok is false otherwise.
