@@ -456,6 +456,7 @@ func nextID(used map[string]bool, counter *int) string {
 // order, two-space indent, one field per line; empty optional fields are left out.
 func Marshal(p *Project) ([]byte, error) {
 	var b bytes.Buffer
+	b.Grow(estimateFileSize(p)) // growing a large buffer step by step costs more than writing it
 	w := &writer{b: &b}
 	w.open("{")
 	w.field("format", FormatName)
@@ -516,6 +517,20 @@ func Marshal(p *Project) ([]byte, error) {
 	w.close("}")
 	b.WriteByte('\n')
 	return b.Bytes(), nil
+}
+
+// estimateFileSize guesses the written size: each node takes a few lines of
+// fields, indented three levels deeper per tree level (node, branches, branch).
+func estimateFileSize(p *Project) int {
+	size := 1024 + 256*len(p.Variables)
+	Walk(p.Root, func(n *Node, depth int) bool {
+		size += 160 + len(n.Name) + len(n.Note) + 30*min(3*depth+2, maxIndent)
+		for _, b := range n.Branches {
+			size += len(b.Label) + len(b.Probability) + len(b.Cash)
+		}
+		return true
+	})
+	return size
 }
 
 type writer struct {
