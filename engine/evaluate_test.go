@@ -336,3 +336,33 @@ func TestDuplicateIDsAreFoundAfterEdits(t *testing.T) {
 	r = engine.Evaluate(p)
 	require.Len(t, r.Problems, 1)
 }
+
+// Values too large or too finely divided for the int64 fast path must fall back
+// to exact decimals and still agree with the independent enumeration.
+func TestRollBackFallsBackToDecimalsExactly(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 8))
+	for i := 0; i < 150; i++ {
+		p := enginetest.RandomProject(rng, enginetest.Options{Nodes: 4 + rng.IntN(12), MaxBranches: 3, UseCash: true})
+		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+			switch {
+			case n.Kind == engine.End && rng.IntN(2) == 0:
+				n.Payoff = n.Payoff + "123456789012345678901" // beyond int64
+			case n.Kind == engine.Chance && len(n.Branches) == 2 && rng.IntN(2) == 0:
+				n.Branches[0].Probability = "0.1234567890123456789"
+				n.Branches[1].Probability = "0.8765432109876543211"
+			}
+			return true
+		})
+		r := engine.Evaluate(p)
+		require.True(t, r.Valid(), "%v", r.Problems)
+		want := bestByEnumeration(p)
+		require.True(t, want.Equal(r.ValueOf(p.Root)), "tree %d: enumeration %s, roll-back %s", i, want, r.ValueOf(p.Root))
+		sum := decimal.Zero
+		for _, row := range r.Paths() {
+			if row.Optimal {
+				sum = sum.Add(row.Contribution)
+			}
+		}
+		require.True(t, sum.Equal(r.ValueOf(p.Root)), "tree %d: contributions %s, root %s", i, sum, r.ValueOf(p.Root))
+	}
+}
