@@ -164,56 +164,61 @@ func evaluateVariables(p *Project, problems *[]Problem) MapEnv {
 // appears twice (the tree is not a tree) is reported and not descended again.
 func (r *Result) index() {
 	stamp := evaluationStamp.Add(1)
-	r.Nodes = make([]*Node, 0, r.Project.sizeHint)
-	stack := []*Node{r.Project.Root}
+	hint := r.Project.sizeHint
+	r.Nodes = make([]*Node, 0, hint)
+	r.parent = make([]int32, 0, hint)
+	r.parentBranch = make([]int32, 0, hint)
+	r.first = make([]int32, 0, hint+1)
+	r.child = make([]int32, 0, hint)
+	// The stack carries where each node hangs, so parents and child slots are
+	// filled in one pass, and the roll-back never has to look into a child node.
+	type item struct {
+		n              *Node
+		parent, branch int32
+	}
+	stack := []item{{r.Project.Root, -1, -1}}
 	for len(stack) > 0 {
-		n := stack[len(stack)-1]
+		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
+		n := it.n
 		if n.stamp == stamp {
 			r.nodeProblem(n, -1, "", "this node appears in two places; a tree node has one parent")
-			r.shared = true
-			continue
+			continue // its second place keeps child slot -1, which breaks that parent
 		}
 		n.stamp = stamp
-		n.index = len(r.Nodes)
+		i := int32(len(r.Nodes))
+		n.index = int(i)
 		r.Nodes = append(r.Nodes, n)
-		for i := len(n.Branches) - 1; i >= 0; i-- {
-			if c := n.Branches[i].To; c != nil {
-				stack = append(stack, c)
+		r.parent = append(r.parent, it.parent)
+		r.parentBranch = append(r.parentBranch, it.branch)
+		if it.parent >= 0 {
+			r.child[r.first[it.parent]+it.branch] = i
+		}
+		r.first = append(r.first, int32(len(r.child)))
+		for range n.Branches {
+			r.child = append(r.child, -1)
+		}
+		for bi := len(n.Branches) - 1; bi >= 0; bi-- {
+			if c := n.Branches[bi].To; c != nil {
+				stack = append(stack, item{c, i, int32(bi)})
 			}
 		}
 	}
+	r.first = append(r.first, int32(len(r.child)))
 	r.checkIDs()
-	count := len(r.Nodes)
+	count, slots := len(r.Nodes), len(r.child)
 	r.Project.sizeHint = count
 	r.value = make([]decimal.Decimal, count)
 	r.choice = make([]int, count)
+	for i := range r.choice {
+		r.choice[i] = -1
+	}
 	r.onPolicy = make([]bool, count)
 	r.payoff = make([]decimal.Decimal, count)
 	r.broken = make([]bool, count)
-	r.parent = make([]int32, count)
-	r.parentBranch = make([]int32, count)
-	r.parent[0] = -1
-	slots := 0
-	for _, n := range r.Nodes {
-		slots += len(n.Branches)
-	}
 	r.probFlat, r.cashFlat = make([]decimal.Decimal, slots), make([]decimal.Decimal, slots)
 	r.probS, r.cashS = make([]small, slots), make([]small, slots)
 	r.payoffS = make([]small, count)
-	r.first = make([]int32, count+1)
-	slot := int32(0)
-	for i, n := range r.Nodes {
-		r.choice[i] = -1
-		r.first[i] = slot
-		slot += int32(len(n.Branches))
-		for bi, b := range n.Branches {
-			if c := b.To; c != nil && c.index < count && r.Nodes[c.index] == c && c.index > i {
-				r.parent[c.index], r.parentBranch[c.index] = int32(i), int32(bi)
-			}
-		}
-	}
-	r.first[count] = slot
 }
 
 // probsOf and cashOf are node i's evaluated branch probabilities and cash, as
@@ -493,8 +498,8 @@ func (r *Result) rollBack() {
 			fast[i] = r.payoffS[i]
 			continue
 		}
-		for _, b := range n.Branches {
-			if b.To != nil && ((r.shared && !r.owns(b.To, i)) || r.broken[b.To.index]) {
+		for bi, b := range n.Branches {
+			if c := r.child[int(r.first[i])+bi]; b.To != nil && (c < 0 || r.broken[c]) {
 				r.broken[i] = true
 			}
 		}
@@ -552,8 +557,8 @@ func (r *Result) decideFast(i int, n *Node, fast []small, maximize bool) (int, [
 	best := -1
 	var bestS small
 	var ties []int
-	for bi, b := range n.Branches {
-		vs := fast[b.To.index].add(r.cashSOf(i)[bi])
+	for bi := range n.Branches {
+		vs := fast[r.child[int(r.first[i])+bi]].add(r.cashSOf(i)[bi])
 		if !vs.ok {
 			return 0, nil, small{}, false
 		}
@@ -579,12 +584,12 @@ func (r *Result) decideFast(i int, n *Node, fast []small, maximize bool) (int, [
 // step would not fit, and the caller then uses decimal.Decimal.
 func (r *Result) chanceFast(i int, n *Node, fast []small) (small, bool) {
 	acc := small{ok: true}
-	for bi, b := range n.Branches {
+	for bi := range n.Branches {
 		p := r.probsOf(i)[bi]
 		if p.IsZero() {
 			continue
 		}
-		v := fast[b.To.index].add(r.cashSOf(i)[bi])
+		v := fast[r.child[int(r.first[i])+bi]].add(r.cashSOf(i)[bi])
 		acc = acc.add(r.probSOf(i)[bi].mul(v))
 		if !acc.ok {
 			return acc, false
@@ -606,13 +611,8 @@ func (r *Result) setValue(i int, d decimal.Decimal) {
 	r.value[i], r.valueS[i] = d, small{}
 }
 
-// owns reports whether c is the child recorded for parent index i (guards shared nodes).
-func (r *Result) owns(c *Node, i int) bool {
-	return c.index < len(r.Nodes) && r.Nodes[c.index] == c && c.index > i && int(r.parent[c.index]) == i
-}
-
 func (r *Result) branchValue(i, bi int, b *Branch) decimal.Decimal {
-	v := r.val(b.To.index)
+	v := r.val(int(r.child[int(r.first[i])+bi]))
 	if c := r.cashOf(i)[bi]; !c.IsZero() {
 		v = v.Add(c)
 	}
@@ -650,7 +650,7 @@ func (r *Result) evaluateRisk() {
 			continue
 		}
 		branchCE := func(bi int, b *Branch) float64 {
-			return ce[b.To.index] + sign*r.cashOf(i)[bi].InexactFloat64()
+			return ce[r.child[int(r.first[i])+bi]] + sign*r.cashOf(i)[bi].InexactFloat64()
 		}
 		switch n.Kind {
 		case End:
@@ -790,14 +790,15 @@ func (r *Result) markPolicy() {
 		if !r.onPolicy[i] {
 			continue
 		}
-		for bi, b := range n.Branches {
-			if b.To == nil || !r.owns(b.To, i) {
+		for bi := range n.Branches {
+			c := r.child[int(r.first[i])+bi]
+			if c < 0 {
 				continue
 			}
 			if n.Kind == Decision && bi != r.choice[i] {
 				continue
 			}
-			r.onPolicy[b.To.index] = true
+			r.onPolicy[c] = true
 		}
 	}
 }

@@ -366,3 +366,14 @@ func TestRollBackFallsBackToDecimalsExactly(t *testing.T) {
 		require.True(t, sum.Equal(r.ValueOf(p.Root)), "tree %d: contributions %s, root %s", i, sum, r.ValueOf(p.Root))
 	}
 }
+
+func TestANodeInTwoPlacesIsAProblemNotACrash(t *testing.T) {
+	shared := end("shared", "5")
+	p := &engine.Project{Root: &engine.Node{ID: "d", Kind: engine.Decision, Branches: []*engine.Branch{
+		br("A", "", shared), br("B", "", shared), br("C", "", end("c", "1")),
+	}}}
+	r := engine.Evaluate(p)
+	require.False(t, r.Valid())
+	assert.Contains(t, r.Problems[0].Msg, `node "shared": this node appears in two places`)
+	assert.True(t, r.Broken(p.Root))
+}

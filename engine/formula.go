@@ -18,6 +18,17 @@ const DivisionDigits = 28
 // maxPower bounds integer exponents so a typo like 10^100000 cannot exhaust memory.
 const maxPower = 1000
 
+// maxBits bounds the size of any exact intermediate result (about 1,000 decimal
+// digits), so chains like a^1000 with a = b^1000 fail with a message instead of
+// computing for minutes.
+const maxBits = 3322
+
+func bitLen(d decimal.Decimal) int { return d.Coefficient().BitLen() }
+
+func tooLarge(col int) error {
+	return &FormulaError{col, "the result would have more than 1,000 digits"}
+}
+
 // FormulaError is a problem in a formula text; Column counts runes from 1.
 type FormulaError struct {
 	Column int
@@ -534,11 +545,19 @@ func (b *binary) eval(env Env) (decimal.Decimal, error) {
 		return r, err
 	}
 	switch b.op {
-	case "+":
-		return l.Add(r), nil
-	case "-":
+	case "+", "-":
+		// Aligning very different exponents can make a huge coefficient too.
+		if e := int64(l.Exponent()) - int64(r.Exponent()); absInt(e)*332/100+int64(max(bitLen(l), bitLen(r))) > maxBits {
+			return decimal.Zero, tooLarge(b.col)
+		}
+		if b.op == "+" {
+			return l.Add(r), nil
+		}
 		return l.Sub(r), nil
 	case "*":
+		if bitLen(l)+bitLen(r) > maxBits {
+			return decimal.Zero, tooLarge(b.col)
+		}
 		return l.Mul(r), nil
 	case "/":
 		if r.IsZero() {
@@ -552,6 +571,9 @@ func (b *binary) eval(env Env) (decimal.Decimal, error) {
 		n := r.IntPart()
 		if n > maxPower || n < -maxPower {
 			return decimal.Zero, &FormulaError{b.col, fmt.Sprintf("exponent %d is out of range (at most %d)", n, maxPower)}
+		}
+		if k := n; k != 0 && int64(bitLen(l))*absInt(k) > maxBits {
+			return decimal.Zero, tooLarge(b.col)
 		}
 		if n < 0 {
 			if l.IsZero() {
@@ -749,4 +771,11 @@ func (c *cachedFormula) get(src string) (*Formula, error) {
 		c.f, c.err = ParseFormula(src)
 	}
 	return c.f, c.err
+}
+
+func absInt(n int64) int64 {
+	if n < 0 {
+		return -n
+	}
+	return n
 }

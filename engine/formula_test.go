@@ -1,6 +1,7 @@
 package engine
 
 import (
+	"math/big"
 	"testing"
 
 	"github.com/shopspring/decimal"
@@ -134,4 +135,24 @@ func FuzzFormula(f *testing.F) {
 		_, _ = formula.EvalFloat(floatEnv(env))
 		_ = RenameVariable(src, "a", "c")
 	})
+}
+
+func TestHugeResultsAreRefusedNotComputed(t *testing.T) {
+	// 9500^1000 has about 4,000 digits: refused at once rather than computed.
+	for _, src := range []string{"9500^1000", "(10^300)*(10^300)*(10^300)*(10^300)", "1e400 + 1e-400 + 1e-400*1e-400"} {
+		f, err := ParseFormula(src)
+		if err == nil {
+			_, err = f.Eval(MapEnv{})
+		}
+		require.Error(t, err, src)
+		assert.Contains(t, err.Error(), "more than 1,000 digits", src)
+	}
+	// Large but reasonable results are still exact: 2^100 · 3^50 checked against
+	// math/big (an independent library).
+	f, err := ParseFormula("2^100 * 3^50")
+	require.NoError(t, err)
+	v, err := f.Eval(MapEnv{})
+	require.NoError(t, err)
+	want := new(big.Int).Mul(new(big.Int).Exp(big.NewInt(2), big.NewInt(100), nil), new(big.Int).Exp(big.NewInt(3), big.NewInt(50), nil))
+	assert.Equal(t, want.String(), v.String())
 }

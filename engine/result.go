@@ -26,7 +26,8 @@ type Result struct {
 	payoff       []decimal.Decimal // end payoff as evaluated
 	probFlat     []decimal.Decimal // branch probabilities, node i at first[i]:first[i+1]
 	cashFlat     []decimal.Decimal
-	first        []int32
+	first        []int32 // node i's branch slots are first[i] .. first[i+1]-1
+	child        []int32 // node index each branch slot leads to, -1 when none
 	probS, cashS []small // int64 forms of the above, for the roll-back's fast path
 	payoffS      []small
 	valueS       []small // int64 form of value where it fits (then value itself is unset)
@@ -34,7 +35,6 @@ type Result struct {
 	parent       []int32 // parent index, -1 at the root
 	parentBranch []int32
 	forwardOnce  sync.Once
-	shared       bool // some node was reached twice (reported as a problem)
 	varsGen      uint64
 	riskOn       bool
 	tolerance    float64
