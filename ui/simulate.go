@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"math/rand/v2"
+	"path/filepath"
 	"strconv"
 	"strings"
 	"sync/atomic"
@@ -15,7 +16,6 @@ import (
 	"fyne.io/fyne/v2"
 	"fyne.io/fyne/v2/canvas"
 	"fyne.io/fyne/v2/container"
-	"fyne.io/fyne/v2/dialog"
 	"fyne.io/fyne/v2/widget"
 	"github.com/shopspring/decimal"
 
@@ -264,17 +264,11 @@ func (sp *simPanel) save(name string, write func(w io.Writer, ext string) error)
 	if sp.last == nil {
 		return
 	}
-	d := dialog.NewFileSave(func(w fyne.URIWriteCloser, err error) {
-		if err != nil || w == nil {
-			return
-		}
-		defer w.Close()
-		if err := write(w, strings.ToLower(strings.TrimPrefix(w.URI().Extension(), "."))); err != nil {
-			sp.host.ShowError("Cannot save", err)
-		}
-	}, sp.host.Window())
-	d.SetFileName(name)
-	d.Show()
+	// Written to a temporary file and renamed, like every file Ramify writes.
+	askPathAndSave(sp.host, "Cannot save", name, func(path string) error {
+		ext := strings.ToLower(strings.TrimPrefix(filepath.Ext(path), "."))
+		return engine.WriteAtomic(path, func(w io.Writer) error { return write(w, ext) })
+	})
 }
 
 func (sp *simPanel) writeCharts(w io.Writer, ext string) error {
