@@ -3,6 +3,7 @@ package canvas
 import (
 	"strings"
 	"sync"
+	"sync/atomic"
 	"unicode"
 	"unicode/utf8"
 
@@ -57,65 +58,156 @@ func (FontMeasurer) TextWidth(text string, size float64, bold bool) float64 {
 	if bold {
 		m = &metrics[1]
 	}
-	return m.width(text, size, bold)
+	return m.width(text, size)
 }
 
-var metrics [2]fontMetrics
+var metrics = [2]fontMetrics{{bold: false}, {bold: true}}
 
 type glyph struct {
 	idx sfnt.GlyphIndex
 	adv fixed.Int26_6
 }
 
+// fastRunes is how many runes have a slot in the lock-free tables: ASCII plus
+// the few other characters the layout itself writes (see slotOf).
+const fastRunes = 136
+
+// slotOf gives r's slot in the lock-free tables, or -1.
+func slotOf(r rune) int {
+	if r < 128 {
+		return int(r)
+	}
+	switch r {
+	case '−': // the minus sign of negative values
+		return 128
+	case '…': // cut texts
+		return 129
+	case '—': // values that could not be computed
+		return 130
+	case '–':
+		return 131
+	case '€':
+		return 132
+	case '£':
+		return 133
+	case '×':
+		return 134
+	case '¥':
+		return 135
+	}
+	return -1
+}
+
+// fontMetrics caches one face's metrics. Runes with a slot (slotOf) and pairs
+// of them are read without a lock: a table entry is written once, atomically,
+// with a flag bit marking it known, and always with the same value. Other runes
+// and pairs go through maps under the mutex.
 type fontMetrics struct {
-	mu   sync.Mutex
+	bold bool
+	once sync.Once
 	font *opentype.Font
 	upem fixed.Int26_6
+
+	fastGlyph [fastRunes]atomic.Uint64             // known<<63 | idx<<32 | uint32(adv)
+	fastKern  [fastRunes * fastRunes]atomic.Uint64 // known | uint32(kern)
+
+	mu   sync.Mutex
 	buf  sfnt.Buffer
 	gl   map[rune]glyph
 	kern map[[2]sfnt.GlyphIndex]fixed.Int26_6
 }
 
-func (m *fontMetrics) width(s string, size float64, bold bool) float64 {
-	m.mu.Lock()
-	defer m.mu.Unlock()
-	if m.font == nil {
-		m.font = fileFace(size, bold).Face
-		m.upem = fixed.Int26_6(m.font.UnitsPerEm())
-		m.gl = map[rune]glyph{}
-		m.kern = map[[2]sfnt.GlyphIndex]fixed.Int26_6{}
+const known = 1 << 63
+
+func (m *fontMetrics) init() {
+	m.font = fileFace(10, m.bold).Face
+	m.upem = fixed.Int26_6(m.font.UnitsPerEm())
+	m.gl = map[rune]glyph{}
+	m.kern = map[[2]sfnt.GlyphIndex]fixed.Int26_6{}
+}
+
+// glyphLocked looks r up in the font; a rune the font cannot map takes no room.
+func (m *fontMetrics) glyphLocked(r rune) glyph {
+	g, ok := m.gl[r]
+	if ok {
+		return g
 	}
-	var total fixed.Int26_6
-	var prev sfnt.GlyphIndex
-	hasPrev := false
-	for _, r := range s {
-		g, ok := m.gl[r]
-		if !ok {
-			idx, err := m.font.GlyphIndex(&m.buf, r)
-			if err == nil {
-				g.idx = idx
-				g.adv, err = m.font.GlyphAdvance(&m.buf, idx, m.upem, stdfont.HintingNone)
-			}
-			if err != nil {
-				g = glyph{} // a rune the font cannot map takes no room
-			}
-			m.gl[r] = g
+	idx, err := m.font.GlyphIndex(&m.buf, r)
+	if err == nil {
+		g.idx = idx
+		g.adv, err = m.font.GlyphAdvance(&m.buf, idx, m.upem, stdfont.HintingNone)
+	}
+	if err != nil {
+		g = glyph{}
+	}
+	m.gl[r] = g
+	return g
+}
+
+func (m *fontMetrics) kernLocked(a, b sfnt.GlyphIndex) fixed.Int26_6 {
+	pair := [2]sfnt.GlyphIndex{a, b}
+	k, ok := m.kern[pair]
+	if !ok {
+		var err error
+		k, err = m.font.Kern(&m.buf, a, b, m.upem, stdfont.HintingNone)
+		if err != nil {
+			k = 0
 		}
-		if hasPrev {
-			pair := [2]sfnt.GlyphIndex{prev, g.idx}
-			k, ok := m.kern[pair]
-			if !ok {
-				var err error
-				k, err = m.font.Kern(&m.buf, prev, g.idx, m.upem, stdfont.HintingNone)
-				if err != nil {
-					k = 0
-				}
-				m.kern[pair] = k
+		m.kern[pair] = k
+	}
+	return k
+}
+
+// glyphOf is r's glyph; slot is slotOf(r).
+func (m *fontMetrics) glyphOf(r rune, slot int) glyph {
+	if slot >= 0 {
+		if v := m.fastGlyph[slot].Load(); v&known != 0 {
+			return glyph{idx: sfnt.GlyphIndex(v >> 32), adv: fixed.Int26_6(int32(uint32(v)))}
+		}
+	}
+	m.mu.Lock()
+	g := m.glyphLocked(r)
+	m.mu.Unlock()
+	if slot >= 0 {
+		m.fastGlyph[slot].Store(known | uint64(g.idx)<<32 | uint64(uint32(g.adv)))
+	}
+	return g
+}
+
+// kernOf is the kerning between glyphs a and b; when both runes have a slot,
+// slots is their pair's index in fastKern, otherwise -1.
+func (m *fontMetrics) kernOf(a, b sfnt.GlyphIndex, slots int) fixed.Int26_6 {
+	if slots >= 0 {
+		if v := m.fastKern[slots].Load(); v&known != 0 {
+			return fixed.Int26_6(int32(uint32(v)))
+		}
+	}
+	m.mu.Lock()
+	k := m.kernLocked(a, b)
+	m.mu.Unlock()
+	if slots >= 0 {
+		m.fastKern[slots].Store(known | uint64(uint32(k)))
+	}
+	return k
+}
+
+func (m *fontMetrics) width(s string, size float64) float64 {
+	m.once.Do(m.init)
+	var total fixed.Int26_6
+	var prev glyph
+	prevSlot := -1
+	for i, r := range s {
+		slot := slotOf(r)
+		g := m.glyphOf(r, slot)
+		if i > 0 {
+			pair := -1
+			if slot >= 0 && prevSlot >= 0 {
+				pair = prevSlot*fastRunes + slot
 			}
-			total += k
+			total += m.kernOf(prev.idx, g.idx, pair)
 		}
 		total += g.adv
-		prev, hasPrev = g.idx, true
+		prev, prevSlot = g, slot
 	}
 	return float64(total) * size / float64(m.upem)
 }
