@@ -214,8 +214,11 @@ func (m *fontMetrics) width(s string, size float64) float64 {
 
 // measureCache remembers widths by string so re-layout after an edit measures
 // only the texts that changed. One map per style keeps the key a plain string.
+// FontMeasurer's own tables make measuring cheaper than a map look-up, so with
+// it the cache measures directly and keeps only the cut texts.
 type measureCache struct {
 	m      TextMeasurer
+	direct bool
 	widths map[styleKey]map[string]float64
 	cut    map[cutKey]cutText
 }
@@ -238,10 +241,14 @@ type cutText struct {
 }
 
 func newMeasureCache(m TextMeasurer) *measureCache {
-	return &measureCache{m: m, widths: map[styleKey]map[string]float64{}, cut: map[cutKey]cutText{}}
+	_, direct := m.(FontMeasurer)
+	return &measureCache{m: m, direct: direct, widths: map[styleKey]map[string]float64{}, cut: map[cutKey]cutText{}}
 }
 
 func (c *measureCache) table(size float64, bold bool) map[string]float64 {
+	if c.direct {
+		return nil
+	}
 	k := styleKey{size, bold}
 	t := c.widths[k]
 	if t == nil {
@@ -251,9 +258,13 @@ func (c *measureCache) table(size float64, bold bool) map[string]float64 {
 	return t
 }
 
+// width measures s; t is the table of its style (nil when measuring directly).
 func (c *measureCache) width(t map[string]float64, s string, size float64, bold bool) float64 {
 	if s == "" {
 		return 0
+	}
+	if c.direct {
+		return c.m.TextWidth(s, size, bold)
 	}
 	if w, ok := t[s]; ok {
 		return w
@@ -263,18 +274,19 @@ func (c *measureCache) width(t map[string]float64, s string, size float64, bold 
 	return w
 }
 
-// fit returns s cut with an ellipsis so it is at most max wide.
+// fit returns s cut with an ellipsis so it is at most max wide. Only cut
+// texts are remembered: a text that fits costs one width look-up anyway.
 func (c *measureCache) fit(s string, size float64, bold bool, max float64) cutText {
+	t := c.table(size, bold)
+	w := c.width(t, s, size, bold)
+	if w <= max {
+		return cutText{text: s, width: w}
+	}
 	k := cutKey{s, styleKey{size, bold}, max}
 	if ct, ok := c.cut[k]; ok {
 		return ct
 	}
-	t := c.table(size, bold)
-	w := c.width(t, s, size, bold)
-	ct := cutText{text: s, width: w}
-	if w > max {
-		ct = cutToWidth(s, max, func(x string) float64 { return c.width(t, x, size, bold) })
-	}
+	ct := cutToWidth(s, max, func(x string) float64 { return c.width(t, x, size, bold) })
 	c.cut[k] = ct
 	return ct
 }

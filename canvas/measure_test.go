@@ -48,3 +48,35 @@ func TestFontMeasurerFastTablesMatchGonum(t *testing.T) {
 		wg.Wait()
 	}
 }
+
+// countingMeasurer is FontMeasurer behind another type, so measureCache keeps
+// its width tables for it, and counts the calls that reach the font.
+type countingMeasurer struct{ calls *int }
+
+func (c countingMeasurer) TextWidth(s string, size float64, bold bool) float64 {
+	*c.calls++
+	return FontMeasurer{}.TextWidth(s, size, bold)
+}
+
+// With FontMeasurer the cache measures directly; with any other measurer it
+// remembers widths. Both must give the same texts and widths, cut or not.
+func TestMeasureCacheDirectAndRemembered(t *testing.T) {
+	calls := 0
+	direct := newMeasureCache(FontMeasurer{})
+	kept := newMeasureCache(countingMeasurer{&calls})
+	assert.True(t, direct.direct)
+	assert.False(t, kept.direct)
+	texts := []string{"", "Short", "Rent a temporary chiller for the whole summer season", "−1,234.56", "AVAWAY To Ty AVAWAY To Ty AVAWAY To Ty"}
+	for round := 0; round < 2; round++ {
+		for _, s := range texts {
+			for _, max := range []float64{20, 60, 500} {
+				assert.Equal(t, direct.fit(s, 10, false, max), kept.fit(s, 10, false, max), "%q max %v", s, max)
+			}
+			assert.Equal(t, direct.width(direct.table(9, true), s, 9, true), kept.width(kept.table(9, true), s, 9, true), "%q", s)
+		}
+		if round == 0 {
+			calls = 0
+		}
+	}
+	assert.Zero(t, calls, "the second round is answered from the tables")
+}
