@@ -2,6 +2,7 @@ package canvas
 
 import (
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -151,7 +152,13 @@ func (l *Layout) SubtreeBounds(i int) Rect {
 // A Layouter is not safe for concurrent use.
 type Layouter struct {
 	measure *measureCache
+	// entries finds a node's entry when the preorder changed. It is built
+	// only then, from the last layout's preorder, so the first layout of a
+	// tree and re-layouts of an unchanged shape need no map at all. When it
+	// exists it holds every node of the last layout.
 	entries map[*engine.Node]*nodeEntry
+	slab    []nodeEntry // new entries are cut from it, a chunk at a time
+	fresh   int         // nodes expected in a layout that has no entries yet, else 0
 	key     layoutKey
 	gen     uint32
 	last    int // boxes in the last layout, to size the next
@@ -219,7 +226,7 @@ func NewLayouter(m TextMeasurer) *Layouter {
 	if m == nil {
 		m = FontMeasurer{}
 	}
-	return &Layouter{measure: newMeasureCache(m), entries: map[*engine.Node]*nodeEntry{}}
+	return &Layouter{measure: newMeasureCache(m)}
 }
 
 // LayoutTree is a one-off layout (no cache kept between calls).
@@ -242,7 +249,7 @@ func (lo *Layouter) Layout(p *engine.Project, r *engine.Result, opts Options) *L
 	key := layoutKey{evaluated: r != nil, decimals: p.Decimals, currency: p.Currency, ce: opts.ShowCertaintyEquivalent,
 		label: th.LabelSize, num: th.NumberSize, val: th.ValueSize, note: th.NoteSize, maxLabel: th.MaxLabelWidth, maxNote: th.MaxNoteWidth}
 	if key != lo.key {
-		clear(lo.entries)
+		lo.entries = nil
 		lo.nodes, lo.order = lo.nodes[:0], lo.order[:0]
 		lo.key = key
 	}
@@ -337,8 +344,18 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
 	lo.turn ^= 1
 	l.Boxes = lo.boxBuf[lo.turn][:0]
-	if cap(l.Boxes) < lo.last {
-		l.Boxes = make([]NodeBox, 0, lo.last+lo.last/8+16)
+	size := lo.last
+	lo.fresh = 0
+	if len(lo.nodes) == 0 {
+		size = shownCount(p.Root)
+		lo.fresh = size
+	}
+	if cap(l.Boxes) < size {
+		l.Boxes = make([]NodeBox, 0, size+size/8+16)
+	}
+	if c := cap(l.Boxes); cap(lo.nodes) < c {
+		lo.nodes = slices.Grow(lo.nodes, c-len(lo.nodes))
+		lo.order = slices.Grow(lo.order, c-len(lo.order))
 	}
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
@@ -349,10 +366,21 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		if k < len(lo.nodes) && lo.nodes[k] == n {
 			e = lo.order[k]
 		} else {
-			e = lo.entries[n]
+			if lo.entries == nil && k < len(lo.nodes) {
+				// The shape changed: from here on nodes are found by identity.
+				lo.entries = make(map[*engine.Node]*nodeEntry, len(lo.nodes))
+				for i, m := range lo.nodes {
+					lo.entries[m] = lo.order[i]
+				}
+			}
+			if lo.entries != nil {
+				e = lo.entries[n]
+			}
 			if e == nil {
-				e = &nodeEntry{}
-				lo.entries[n] = e
+				e = lo.newEntry(k)
+				if lo.entries != nil {
+					lo.entries[n] = e
+				}
 			}
 			if k < len(lo.nodes) {
 				lo.nodes[k], lo.order[k] = n, e
@@ -507,6 +535,39 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		l.kids[pb.kid0+pb.nkids] = int32(i)
 		pb.nkids++
 	}
+}
+
+// newEntry returns a zero entry for the k-th node of the preorder. Entries are
+// cut from chunks: the first layout of a tree takes one for all its nodes,
+// later layouts small ones for the nodes an edit added.
+func (lo *Layouter) newEntry(k int) *nodeEntry {
+	if len(lo.slab) == 0 {
+		lo.slab = make([]nodeEntry, max(lo.fresh-k, 64))
+	}
+	e := &lo.slab[0]
+	lo.slab = lo.slab[1:]
+	return e
+}
+
+// shownCount is the number of nodes a layout of the tree at root shows:
+// nothing below a collapsed node.
+func shownCount(root *engine.Node) int {
+	count := 0
+	stack := []*engine.Node{root}
+	for len(stack) > 0 {
+		n := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		count++
+		if n.Collapsed && len(n.Branches) > 0 {
+			continue
+		}
+		for _, b := range n.Branches {
+			if b.To != nil {
+				stack = append(stack, b.To)
+			}
+		}
+	}
+	return count
 }
 
 // rowScratch holds the working arrays of placeRows between layouts.
