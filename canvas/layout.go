@@ -158,7 +158,6 @@ type Layouter struct {
 	// exists it holds every node of the last layout.
 	entries map[*engine.Node]*nodeEntry
 	slab    []nodeEntry // new entries are cut from it, a chunk at a time
-	fresh   int         // nodes expected in a layout that has no entries yet, else 0
 	key     layoutKey
 	gen     uint32
 	last    int // boxes in the last layout, to size the next
@@ -345,10 +344,8 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	lo.turn ^= 1
 	l.Boxes = lo.boxBuf[lo.turn][:0]
 	size := lo.last
-	lo.fresh = 0
 	if len(lo.nodes) == 0 {
 		size = shownCount(p.Root)
-		lo.fresh = size
 	}
 	if cap(l.Boxes) < size {
 		l.Boxes = make([]NodeBox, 0, size+size/8+16)
@@ -377,7 +374,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				e = lo.entries[n]
 			}
 			if e == nil {
-				e = lo.newEntry(k)
+				e = lo.newEntry()
 				if lo.entries != nil {
 					lo.entries[n] = e
 				}
@@ -537,12 +534,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 }
 
-// newEntry returns a zero entry for the k-th node of the preorder. Entries are
-// cut from chunks: the first layout of a tree takes one for all its nodes,
-// later layouts small ones for the nodes an edit added.
-func (lo *Layouter) newEntry(k int) *nodeEntry {
+// newEntry returns a zero entry. Entries are cut from small chunks: one
+// allocation per 64 nodes, each chunk still in the cache when it is filled.
+func (lo *Layouter) newEntry() *nodeEntry {
 	if len(lo.slab) == 0 {
-		lo.slab = make([]nodeEntry, max(lo.fresh-k, 64))
+		lo.slab = make([]nodeEntry, 64)
 	}
 	e := &lo.slab[0]
 	lo.slab = lo.slab[1:]
