@@ -193,6 +193,41 @@ func (m *fontMetrics) kernOf(a, b sfnt.GlyphIndex, slots int) fixed.Int26_6 {
 
 func (m *fontMetrics) width(s string, size float64) float64 {
 	m.once.Do(m.init)
+	total, ok := m.asciiWidth(s)
+	if !ok {
+		total = m.runeWidth(s)
+	}
+	return float64(total) * size / float64(m.upem)
+}
+
+// asciiWidth sums an ASCII text whose runes and pairs are all in the
+// lock-free tables; ok is false for any other text.
+func (m *fontMetrics) asciiWidth(s string) (total fixed.Int26_6, ok bool) {
+	prev := -1
+	for i := 0; i < len(s); i++ {
+		c := int(s[i])
+		if c >= 0x80 {
+			return 0, false
+		}
+		g := m.fastGlyph[c].Load()
+		if g&known == 0 {
+			return 0, false
+		}
+		if prev >= 0 {
+			k := m.fastKern[prev*fastRunes+c].Load()
+			if k&known == 0 {
+				return 0, false
+			}
+			total += fixed.Int26_6(int32(uint32(k)))
+		}
+		total += fixed.Int26_6(int32(uint32(g)))
+		prev = c
+	}
+	return total, true
+}
+
+// runeWidth sums any text, filling the tables and maps as it goes.
+func (m *fontMetrics) runeWidth(s string) fixed.Int26_6 {
 	var total fixed.Int26_6
 	var prev glyph
 	prevSlot := -1
@@ -209,7 +244,7 @@ func (m *fontMetrics) width(s string, size float64) float64 {
 		total += g.adv
 		prev, prevSlot = g, slot
 	}
-	return float64(total) * size / float64(m.upem)
+	return total
 }
 
 // measureCache remembers widths by string so re-layout after an edit measures
