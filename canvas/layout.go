@@ -343,12 +343,19 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
 	lo.turn ^= 1
 	l.Boxes = lo.boxBuf[lo.turn][:0]
-	size := lo.last
-	if len(lo.nodes) == 0 {
-		size = shownCount(p.Root)
-	}
-	if cap(l.Boxes) < size {
-		l.Boxes = make([]NodeBox, 0, size+size/8+16)
+	switch {
+	case len(lo.nodes) == 0 && cap(l.Boxes) == 0:
+		// The first layout: the result's node count bounds the shown nodes
+		// without a walk; only an unevaluated tree is counted.
+		size := 0
+		if r != nil {
+			size = len(r.Nodes)
+		} else {
+			size = shownCount(p.Root)
+		}
+		l.Boxes = make([]NodeBox, 0, size)
+	case cap(l.Boxes) < lo.last:
+		l.Boxes = make([]NodeBox, 0, lo.last+lo.last/8+16)
 	}
 	if c := cap(l.Boxes); cap(lo.nodes) < c {
 		lo.nodes = slices.Grow(lo.nodes, c-len(lo.nodes))
@@ -604,7 +611,7 @@ func (lo *Layouter) columns(l *Layout) {
 	branchW := make([]float64, depth+1)
 	valueW := make([]float64, depth+1)
 	lhLabel, lhNum, lhVal, lhNote := th.lineHeight(th.LabelSize), th.lineHeight(th.NumberSize), th.lineHeight(th.ValueSize), th.lineHeight(th.NoteSize)
-	half := math.Max(th.NodeSize, th.EndHeight) / 2
+	half := maxf(th.NodeSize, th.EndHeight) / 2
 	for i := range l.Boxes {
 		b := &l.Boxes[i]
 		d := b.Depth
@@ -613,31 +620,31 @@ func (lo *Layouter) columns(l *Layout) {
 		if !b.Prob.empty() && !b.Cash.empty() {
 			nums += 2 * th.TextPad
 		}
-		w = math.Max(w, nums)
+		w = maxf(w, nums)
 		for _, n := range b.Notes {
-			w = math.Max(w, n.Width)
+			w = maxf(w, n.Width)
 		}
-		branchW[d] = math.Max(branchW[d], w)
-		v := math.Max(b.Value.Width, b.Payoff.Width)
-		v = math.Max(v, b.HiddenNote.Width)
+		branchW[d] = maxf(branchW[d], w)
+		v := maxf(b.Value.Width, b.Payoff.Width)
+		v = maxf(v, b.HiddenNote.Width)
 		for _, p := range b.Problems {
-			v = math.Max(v, p.Width)
+			v = maxf(v, p.Width)
 		}
-		valueW[d] = math.Max(valueW[d], v)
+		valueW[d] = maxf(valueW[d], v)
 
 		top, bottom := half, half
 		if !b.Label.empty() {
-			top = math.Max(top, th.TextPad+lhLabel)
+			top = maxf(top, th.TextPad+lhLabel)
 		}
 		if !b.Value.empty() {
-			top = math.Max(top, th.TextPad+lhVal)
+			top = maxf(top, th.TextPad+lhVal)
 		}
 		if len(b.Problems) > 0 { // the mark sits above the node
-			top = math.Max(top, math.Max(th.NodeSize, th.EndHeight)/2+2*problemMarkSize(th)+2)
+			top = maxf(top, maxf(th.NodeSize, th.EndHeight)/2+2*problemMarkSize(th)+2)
 		}
 		if !b.Payoff.empty() {
-			top = math.Max(top, lhVal/2)
-			bottom = math.Max(bottom, lhVal/2)
+			top = maxf(top, lhVal/2)
+			bottom = maxf(bottom, lhVal/2)
 		}
 		below := 0.0
 		if !b.Prob.empty() || !b.Cash.empty() {
@@ -645,7 +652,7 @@ func (lo *Layouter) columns(l *Layout) {
 		}
 		below += float64(len(b.Notes)) * lhNote
 		if below > 0 {
-			bottom = math.Max(bottom, th.TextPad+below)
+			bottom = maxf(bottom, th.TextPad+below)
 		}
 		under := float64(len(b.Problems)) * lhNote
 		if !b.HiddenNote.empty() {
@@ -655,7 +662,7 @@ func (lo *Layouter) columns(l *Layout) {
 			under += lhVal / 2
 		}
 		if under > 0 {
-			bottom = math.Max(bottom, th.TextPad+under)
+			bottom = maxf(bottom, th.TextPad+under)
 		}
 		b.Top, b.Bottom = top, bottom
 	}
@@ -669,12 +676,12 @@ func (lo *Layouter) columns(l *Layout) {
 			c.NodeX = th.NodeSize / 2
 		} else {
 			c.BranchX = x + th.FanWidth
-			c.NodeX = c.BranchX + math.Max(branchW[d]+2*th.TextPad, th.MinBranch) + th.NodeSize/2
+			c.NodeX = c.BranchX + maxf(branchW[d]+2*th.TextPad, th.MinBranch) + th.NodeSize/2
 		}
-		c.ValueX = c.NodeX + math.Max(th.NodeSize, th.EndWidth)/2 + th.TextPad
+		c.ValueX = c.NodeX + maxf(th.NodeSize, th.EndWidth)/2 + th.TextPad
 		c.End = c.ValueX + valueW[d] + th.TextPad
 		if d < depth {
-			c.End = math.Max(c.End, c.NodeX+th.NodeSize/2+th.StubLength)
+			c.End = maxf(c.End, c.NodeX+th.NodeSize/2+th.StubLength)
 		}
 		x = c.End
 	}
@@ -848,11 +855,34 @@ func (l *Layout) finish() {
 	for i := range l.Boxes {
 		b := &l.Boxes[i]
 		b.X = l.Columns[b.Depth].NodeX
-		minY = math.Min(minY, b.Y-b.Top)
-		maxY = math.Max(maxY, b.Y+b.Bottom)
+		minY = minf(minY, b.Y-b.Top)
+		maxY = maxf(maxY, b.Y+b.Bottom)
 	}
 	for i := range l.Boxes {
 		l.Boxes[i].Y -= minY
 	}
 	l.Bounds = Rect{0, 0, l.Columns[len(l.Columns)-1].End, maxY - minY}
+}
+
+// maxf is math.Max, with the same result for zeros, infinities and NaN, in a
+// form the compiler inlines (on amd64 math.Max is an assembly call).
+func maxf(x, y float64) float64 {
+	if x > y {
+		return x
+	}
+	if y > x {
+		return y
+	}
+	return math.Max(x, y) // equal, or a NaN
+}
+
+// minf is math.Min in the same way.
+func minf(x, y float64) float64 {
+	if x < y {
+		return x
+	}
+	if y < x {
+		return y
+	}
+	return math.Min(x, y)
 }

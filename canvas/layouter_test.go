@@ -1,6 +1,7 @@
 package canvas
 
 import (
+	"math"
 	"math/rand/v2"
 	"testing"
 
@@ -105,4 +106,16 @@ func TestShownCount(t *testing.T) {
 	p.Root.Branches[0].To.Collapsed = true
 	l = LayoutTree(p, nil, FontMeasurer{}, DefaultOptions())
 	assert.Equal(t, len(l.Boxes), shownCount(p.Root))
+}
+
+// columns and finish use maxf and minf, which must give math.Max and math.Min
+// bit for bit, also on zeros, infinities and NaN.
+func TestMaxfMatchesMath(t *testing.T) {
+	vals := []float64{0, math.Copysign(0, -1), 1, -1, math.Inf(1), math.Inf(-1), math.NaN(), 1e-300, 7.25}
+	for _, a := range vals {
+		for _, b := range vals {
+			assert.Equal(t, math.Float64bits(math.Max(a, b)), math.Float64bits(maxf(a, b)), "max(%v, %v)", a, b)
+			assert.Equal(t, math.Float64bits(math.Min(a, b)), math.Float64bits(minf(a, b)), "min(%v, %v)", a, b)
+		}
+	}
 }
