@@ -199,6 +199,15 @@ func (c *cachedNumber) get(d decimal.Decimal, format func(decimal.Decimal) strin
 	return c.s
 }
 
+// holds reports whether the cached text is the one for d.
+func (c *cachedNumber) holds(d decimal.Decimal) bool { return c.ok && c.d.Equal(d) }
+
+// set caches s as d's text and returns it.
+func (c *cachedNumber) set(d decimal.Decimal, s string) string {
+	c.d, c.s, c.ok = d, s, true
+	return s
+}
+
 // nodeEntry is what a Layouter remembers about one node.
 type nodeEntry struct {
 	NodeTexts
@@ -304,7 +313,6 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 	const noValue = "—" // a value that could not be computed
 	format := func(d decimal.Decimal) string { return engine.FormatValue(d, p.Decimals, p.Currency) }
-	formatP := engine.FormatProbability
 	fit := func(s string, size float64, max float64) TextRun {
 		s = cleanText(s)
 		ct := mc.fit(s, size, false, max)
@@ -406,7 +414,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			case r != nil && badField[fieldKey{parent.ID, bi, "probability"}]:
 				source(&e.Prob, &e.probSrc, raw(br.Probability), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
-				number(&e.Prob, &e.probSrc, numT, e.prob.get(r.Probability(parent, bi), formatP), th.NumberSize, false)
+				s := e.prob.s
+				if d := r.Probability(parent, bi); !e.prob.holds(d) {
+					s = e.prob.set(d, r.ProbabilityText(parent, bi))
+				}
+				number(&e.Prob, &e.probSrc, numT, s, th.NumberSize, false)
 			default:
 				source(&e.Prob, &e.probSrc, br.Probability, th.NumberSize, th.MaxLabelWidth/2)
 			}
@@ -416,7 +428,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			case r != nil && badField[fieldKey{parent.ID, bi, "cash"}]:
 				source(&e.Cash, &e.cashSrc, raw(br.Cash), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
-				number(&e.Cash, &e.cashSrc, numT, e.cash.get(r.Cash(parent, bi), format), th.NumberSize, false)
+				s := e.cash.s
+				if d := r.Cash(parent, bi); !e.cash.holds(d) {
+					s = e.cash.set(d, r.CashText(parent, bi))
+				}
+				number(&e.Cash, &e.cashSrc, numT, s, th.NumberSize, false)
 			default:
 				source(&e.Cash, &e.cashSrc, br.Cash, th.NumberSize, th.MaxLabelWidth/2)
 			}
@@ -449,22 +465,33 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			case r != nil && r.Broken(n):
 				number(&e.Payoff, &e.payoffSrc, valT, noValue, th.ValueSize, true)
 			case r != nil:
-				number(&e.Payoff, &e.payoffSrc, valT, e.payoff.get(r.PathValue(n), format), th.ValueSize, true)
+				s := e.payoff.s
+				if d := r.PathValue(n); !e.payoff.holds(d) {
+					s = e.payoff.set(d, r.PathValueText(n))
+				}
+				number(&e.Payoff, &e.payoffSrc, valT, s, th.ValueSize, true)
 			default:
 				source(&e.Payoff, &e.payoffSrc, n.Payoff, th.ValueSize, th.MaxLabelWidth/2)
 			}
 		case r != nil:
 			e.Payoff = TextRun{}
-			v := r.ValueOf(n)
+			v, isCE := r.ValueOf(n), false
 			if opts.ShowCertaintyEquivalent {
 				if ce, ok := r.CertaintyEquivalent(n); ok {
-					v = ce
+					v, isCE = ce, true
 				}
 			}
-			if r.Broken(n) {
+			switch {
+			case r.Broken(n):
 				number(&e.Value, &e.valueSrc, valT, noValue, th.ValueSize, true)
-			} else {
+			case isCE:
 				number(&e.Value, &e.valueSrc, valT, e.value.get(v, format), th.ValueSize, true)
+			default:
+				s := e.value.s
+				if !e.value.holds(v) {
+					s = e.value.set(v, r.ValueText(n))
+				}
+				number(&e.Value, &e.valueSrc, valT, s, th.ValueSize, true)
 			}
 		default:
 			e.Payoff, e.Value = TextRun{}, TextRun{}

@@ -15,26 +15,40 @@ const Caution = "A decision aid only; where health, safety or structures are inv
 // thousands separator, a true minus sign and the unit. Every renderer and the CLI
 // print values through it, so one number never prints two ways.
 func FormatValue(d decimal.Decimal, decimals int, unit string) string {
-	if decimals < 0 {
-		decimals = 0
+	return formatValue(d, smallOf(d), decimals, unit)
+}
+
+// formatValue is FormatValue given d's int64 form s, when it has one.
+func formatValue(d decimal.Decimal, s small, decimals int, unit string) string {
+	if str, ok := formatSmall(s, decimals, unit); ok {
+		return str
 	}
-	var buf [64]byte
-	if b, ok := appendNumberFast(buf[:0], d, decimals); ok {
-		if unit != "" {
-			b = append(append(b, ' '), unit...)
-		}
-		return string(b)
-	}
-	s := formatNumberDecimal(d, decimals)
+	decimals = max(decimals, 0)
+	str := formatNumberDecimal(d, decimals)
 	if unit == "" {
-		return s
+		return str
 	}
-	return s + " " + unit
+	return str + " " + unit
 }
 
 // FormatNumber is FormatValue without the unit.
 func FormatNumber(d decimal.Decimal, decimals int) string {
 	return FormatValue(d, decimals, "")
+}
+
+// formatSmall is FormatValue of s; ok is false when s is not set or the
+// int64 path cannot print it (then the decimal must).
+func formatSmall(s small, decimals int, unit string) (string, bool) {
+	decimals = max(decimals, 0)
+	var buf [64]byte
+	b, ok := appendNumberFast(buf[:0], s, decimals)
+	if !ok {
+		return "", false
+	}
+	if unit != "" {
+		b = append(append(b, ' '), unit...)
+	}
+	return string(b), true
 }
 
 // formatNumberDecimal is FormatNumber done entirely with decimal.Decimal; it
@@ -63,8 +77,13 @@ func formatNumberDecimal(d decimal.Decimal, decimals int) string {
 
 // FormatProbability prints a probability compactly (up to 4 decimals, no trailing zeros).
 func FormatProbability(d decimal.Decimal) string {
+	return formatProbability(d, smallOf(d))
+}
+
+// formatProbability is FormatProbability given d's int64 form s, when it has one.
+func formatProbability(d decimal.Decimal, s small) string {
 	const places = 4
-	if mag, neg, ok := roundSmall(d, places); ok {
+	if mag, neg, ok := roundSmall(s, places); ok {
 		var buf [40]byte
 		b := buf[:0]
 		if neg {
@@ -76,14 +95,13 @@ func FormatProbability(d decimal.Decimal) string {
 	return d.Round(places).String()
 }
 
-// roundSmall rounds d half away from zero to the given decimals when its
-// coefficient fits in an int64 and the rounded coefficient (at exponent
+// roundSmall rounds s half away from zero to the given decimals when it is
+// set (s.ok) and the rounded coefficient (at exponent
 // -decimals) fits in a uint64. It gives the magnitude and whether the rounded
 // value is below zero; a value that rounds to zero is never negative. It
 // matches decimal.Decimal's Round digit for digit, which truncates to one
 // extra digit and rounds that digit half away from zero.
-func roundSmall(d decimal.Decimal, decimals int) (mag uint64, neg bool, ok bool) {
-	s := smallOf(d)
+func roundSmall(s small, decimals int) (mag uint64, neg bool, ok bool) {
 	if !s.ok {
 		return 0, false, false
 	}
@@ -115,12 +133,12 @@ func roundSmall(d decimal.Decimal, decimals int) (mag uint64, neg bool, ok bool)
 	return m, neg && m != 0, true
 }
 
-// appendNumberFast appends FormatNumber(d, decimals) when the int64 path applies.
-func appendNumberFast(b []byte, d decimal.Decimal, decimals int) ([]byte, bool) {
+// appendNumberFast appends FormatNumber of s when the int64 path applies.
+func appendNumberFast(b []byte, s small, decimals int) ([]byte, bool) {
 	if decimals > 18 {
 		return b, false
 	}
-	mag, neg, ok := roundSmall(d, decimals)
+	mag, neg, ok := roundSmall(s, decimals)
 	if !ok {
 		return b, false
 	}
