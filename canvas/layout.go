@@ -3,6 +3,7 @@ package canvas
 import (
 	"math"
 	"slices"
+	"unsafe"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -185,26 +186,26 @@ type layoutKey struct {
 	maxLabel, maxNote     float64
 }
 
+// cachedNumber remembers the text of one evaluated number. The formatter
+// never prints an empty text, so an empty s means nothing is cached.
 type cachedNumber struct {
-	d  decimal.Decimal
-	s  string
-	ok bool
+	d decimal.Decimal
+	s string
 }
 
 func (c *cachedNumber) get(d decimal.Decimal, format func(decimal.Decimal) string) string {
-	if c.ok && c.d.Equal(d) {
-		return c.s
+	if !c.holds(d) {
+		c.set(d, format(d))
 	}
-	c.d, c.s, c.ok = d, format(d), true
 	return c.s
 }
 
 // holds reports whether the cached text is the one for d.
-func (c *cachedNumber) holds(d decimal.Decimal) bool { return c.ok && c.d.Equal(d) }
+func (c *cachedNumber) holds(d decimal.Decimal) bool { return c.s != "" && c.d.Equal(d) }
 
 // set caches s as d's text and returns it.
 func (c *cachedNumber) set(d decimal.Decimal, s string) string {
-	c.d, c.s, c.ok = d, s, true
+	c.d, c.s = d, s
 	return s
 }
 
@@ -213,9 +214,10 @@ type nodeEntry struct {
 	NodeTexts
 	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed
 	valueSrc                              string
-	prob, cash, value, payoff             cachedNumber
+	prob, cash                            cachedNumber
+	value                                 cachedNumber // the value beside the node, or an end's path payoff
 	notesSrc, problemsSrc                 []string
-	hiddenSrc                             int
+	hiddenSrc                             int32
 	seen                                  uint32
 }
 
@@ -465,9 +467,9 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			case r != nil && r.Broken(n):
 				number(&e.Payoff, &e.payoffSrc, valT, noValue, th.ValueSize, true)
 			case r != nil:
-				s := e.payoff.s
-				if d := r.PathValue(n); !e.payoff.holds(d) {
-					s = e.payoff.set(d, r.PathValueText(n))
+				s := e.value.s
+				if d := r.PathValue(n); !e.value.holds(d) {
+					s = e.value.set(d, r.PathValueText(n))
 				}
 				number(&e.Payoff, &e.payoffSrc, valT, s, th.ValueSize, true)
 			default:
@@ -522,8 +524,8 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		self := int32(len(l.Boxes))
 		if collapsed {
 			b.Hidden = hidden
-			if hidden != e.hiddenSrc || e.HiddenNote.Text == "" {
-				e.hiddenSrc = hidden
+			if int32(hidden) != e.hiddenSrc || e.HiddenNote.Text == "" {
+				e.hiddenSrc = int32(hidden)
 				word := " nodes hidden"
 				if hidden == 1 {
 					word = " node hidden"
@@ -568,11 +570,15 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 }
 
+// entryChunk is how many entries one chunk holds: as many as fit in 32 KiB,
+// the largest allocation Go serves from size classes without page rounding.
+const entryChunk = (32 << 10) / int(unsafe.Sizeof(nodeEntry{}))
+
 // newEntry returns a zero entry. Entries are cut from small chunks: one
-// allocation per 64 nodes, each chunk still in the cache when it is filled.
+// allocation per few dozen nodes, each chunk still in the cache when it is filled.
 func (lo *Layouter) newEntry() *nodeEntry {
 	if len(lo.slab) == 0 {
-		lo.slab = make([]nodeEntry, 64)
+		lo.slab = make([]nodeEntry, entryChunk)
 	}
 	e := &lo.slab[0]
 	lo.slab = lo.slab[1:]
