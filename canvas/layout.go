@@ -164,6 +164,7 @@ type Layouter struct {
 	last    int // boxes in the last layout, to size the next
 	scratch rowScratch
 	stack   []walkItem
+	ext     extents
 	// The last layout's preorder: when the tree's shape is unchanged the i-th
 	// node visited is the same as last time and needs no map lookup.
 	order []*nodeEntry
@@ -350,6 +351,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		return true
 	}
 
+	lo.ext.reset(th)
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
 	lo.turn ^= 1
 	l.Boxes = lo.boxBuf[lo.turn][:0]
@@ -540,6 +542,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				}
 			}
 		}
+		lo.ext.add(&b)
 		l.Boxes = append(l.Boxes, b)
 	}
 	lo.stack = stack[:0]
@@ -634,71 +637,87 @@ func itoa(n int) string {
 	return engine.FormatNumber(decimal.NewFromInt(int64(n)), 0)
 }
 
-// columns sets each depth's horizontal plan and each box's vertical extents.
+// extents gathers, box by box as collect builds them (while their texts are
+// still in the cache), each box's vertical extents and each depth's widest
+// branch text and value text; columns then plans the columns from them.
+type extents struct {
+	th                            *Theme
+	lhLabel, lhNum, lhVal, lhNote float64
+	half                          float64
+	branchW, valueW               []float64 // by depth
+}
+
+func (x *extents) reset(th *Theme) {
+	x.th = th
+	x.lhLabel, x.lhNum, x.lhVal, x.lhNote = th.lineHeight(th.LabelSize), th.lineHeight(th.NumberSize), th.lineHeight(th.ValueSize), th.lineHeight(th.NoteSize)
+	x.half = maxf(th.NodeSize, th.EndHeight) / 2
+	x.branchW, x.valueW = x.branchW[:0], x.valueW[:0]
+}
+
+// add sets b's Top and Bottom and widens its depth's column to fit its texts.
+func (x *extents) add(b *NodeBox) {
+	th := x.th
+	d := b.Depth
+	for len(x.branchW) <= d {
+		x.branchW, x.valueW = append(x.branchW, 0), append(x.valueW, 0)
+	}
+	w := b.Label.Width
+	nums := b.Prob.Width + b.Cash.Width
+	if !b.Prob.empty() && !b.Cash.empty() {
+		nums += 2 * th.TextPad
+	}
+	w = maxf(w, nums)
+	for _, n := range b.Notes {
+		w = maxf(w, n.Width)
+	}
+	x.branchW[d] = maxf(x.branchW[d], w)
+	v := maxf(b.Value.Width, b.Payoff.Width)
+	v = maxf(v, b.HiddenNote.Width)
+	for _, p := range b.Problems {
+		v = maxf(v, p.Width)
+	}
+	x.valueW[d] = maxf(x.valueW[d], v)
+
+	top, bottom := x.half, x.half
+	if !b.Label.empty() {
+		top = maxf(top, th.TextPad+x.lhLabel)
+	}
+	if !b.Value.empty() {
+		top = maxf(top, th.TextPad+x.lhVal)
+	}
+	if len(b.Problems) > 0 { // the mark sits above the node
+		top = maxf(top, maxf(th.NodeSize, th.EndHeight)/2+2*problemMarkSize(th)+2)
+	}
+	if !b.Payoff.empty() {
+		top = maxf(top, x.lhVal/2)
+		bottom = maxf(bottom, x.lhVal/2)
+	}
+	below := 0.0
+	if !b.Prob.empty() || !b.Cash.empty() {
+		below = x.lhNum
+	}
+	below += float64(len(b.Notes)) * x.lhNote
+	if below > 0 {
+		bottom = maxf(bottom, th.TextPad+below)
+	}
+	under := float64(len(b.Problems)) * x.lhNote
+	if !b.HiddenNote.empty() {
+		under += x.lhNote
+	}
+	if !b.Payoff.empty() && under > 0 {
+		under += x.lhVal / 2
+	}
+	if under > 0 {
+		bottom = maxf(bottom, th.TextPad+under)
+	}
+	b.Top, b.Bottom = top, bottom
+}
+
+// columns sets each depth's horizontal plan from the widths extents gathered.
 func (lo *Layouter) columns(l *Layout) {
 	th := &l.Theme
-	depth := 0
-	for i := range l.Boxes {
-		depth = max(depth, l.Boxes[i].Depth)
-	}
-	branchW := make([]float64, depth+1)
-	valueW := make([]float64, depth+1)
-	lhLabel, lhNum, lhVal, lhNote := th.lineHeight(th.LabelSize), th.lineHeight(th.NumberSize), th.lineHeight(th.ValueSize), th.lineHeight(th.NoteSize)
-	half := maxf(th.NodeSize, th.EndHeight) / 2
-	for i := range l.Boxes {
-		b := &l.Boxes[i]
-		d := b.Depth
-		w := b.Label.Width
-		nums := b.Prob.Width + b.Cash.Width
-		if !b.Prob.empty() && !b.Cash.empty() {
-			nums += 2 * th.TextPad
-		}
-		w = maxf(w, nums)
-		for _, n := range b.Notes {
-			w = maxf(w, n.Width)
-		}
-		branchW[d] = maxf(branchW[d], w)
-		v := maxf(b.Value.Width, b.Payoff.Width)
-		v = maxf(v, b.HiddenNote.Width)
-		for _, p := range b.Problems {
-			v = maxf(v, p.Width)
-		}
-		valueW[d] = maxf(valueW[d], v)
-
-		top, bottom := half, half
-		if !b.Label.empty() {
-			top = maxf(top, th.TextPad+lhLabel)
-		}
-		if !b.Value.empty() {
-			top = maxf(top, th.TextPad+lhVal)
-		}
-		if len(b.Problems) > 0 { // the mark sits above the node
-			top = maxf(top, maxf(th.NodeSize, th.EndHeight)/2+2*problemMarkSize(th)+2)
-		}
-		if !b.Payoff.empty() {
-			top = maxf(top, lhVal/2)
-			bottom = maxf(bottom, lhVal/2)
-		}
-		below := 0.0
-		if !b.Prob.empty() || !b.Cash.empty() {
-			below = lhNum
-		}
-		below += float64(len(b.Notes)) * lhNote
-		if below > 0 {
-			bottom = maxf(bottom, th.TextPad+below)
-		}
-		under := float64(len(b.Problems)) * lhNote
-		if !b.HiddenNote.empty() {
-			under += lhNote
-		}
-		if !b.Payoff.empty() && under > 0 {
-			under += lhVal / 2
-		}
-		if under > 0 {
-			bottom = maxf(bottom, th.TextPad+under)
-		}
-		b.Top, b.Bottom = top, bottom
-	}
+	branchW, valueW := lo.ext.branchW, lo.ext.valueW
+	depth := len(branchW) - 1
 	l.Columns = make([]Column, depth+1)
 	x := 0.0
 	for d := 0; d <= depth; d++ {
