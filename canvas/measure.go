@@ -200,14 +200,18 @@ func (m *fontMetrics) width(s string, size float64) float64 {
 	return float64(total) * size / float64(m.upem)
 }
 
-// asciiWidth sums an ASCII text whose runes and pairs are all in the
-// lock-free tables; ok is false for any other text.
+// asciiWidth sums a text whose runes (ASCII and the slotted few) and pairs
+// are all in the lock-free tables; ok is false for any other text.
 func (m *fontMetrics) asciiWidth(s string) (total fixed.Int26_6, ok bool) {
 	prev := -1
 	for i := 0; i < len(s); i++ {
 		c := int(s[i])
 		if c >= 0x80 {
-			return 0, false
+			r, size := utf8.DecodeRuneInString(s[i:])
+			if c = slotOf(r); c < 0 || r == utf8.RuneError {
+				return 0, false
+			}
+			i += size - 1
 		}
 		g := m.fastGlyph[c].Load()
 		if g&known == 0 {
