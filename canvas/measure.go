@@ -3,6 +3,7 @@ package canvas
 import (
 	"strings"
 	"sync"
+	"sync/atomic"
 	"unicode"
 	"unicode/utf8"
 
@@ -57,73 +58,206 @@ func (FontMeasurer) TextWidth(text string, size float64, bold bool) float64 {
 	if bold {
 		m = &metrics[1]
 	}
-	return m.width(text, size, bold)
+	return m.width(text, size)
 }
 
-var metrics [2]fontMetrics
+var metrics = [2]fontMetrics{{bold: false}, {bold: true}}
 
 type glyph struct {
 	idx sfnt.GlyphIndex
 	adv fixed.Int26_6
 }
 
+// fastRunes is how many runes have a slot in the lock-free tables: ASCII plus
+// the few other characters the layout itself writes (see slotOf).
+const fastRunes = 136
+
+// slotOf gives r's slot in the lock-free tables, or -1.
+func slotOf(r rune) int {
+	if r < 128 {
+		return int(r)
+	}
+	switch r {
+	case '−': // the minus sign of negative values
+		return 128
+	case '…': // cut texts
+		return 129
+	case '—': // values that could not be computed
+		return 130
+	case '–':
+		return 131
+	case '€':
+		return 132
+	case '£':
+		return 133
+	case '×':
+		return 134
+	case '¥':
+		return 135
+	}
+	return -1
+}
+
+// fontMetrics caches one face's metrics. Runes with a slot (slotOf) and pairs
+// of them are read without a lock: a table entry is written once, atomically,
+// with a flag bit marking it known, and always with the same value. Other runes
+// and pairs go through maps under the mutex.
 type fontMetrics struct {
-	mu   sync.Mutex
+	bold bool
+	once sync.Once
 	font *opentype.Font
 	upem fixed.Int26_6
+
+	fastGlyph [fastRunes]atomic.Uint64             // known<<63 | idx<<32 | uint32(adv)
+	fastKern  [fastRunes * fastRunes]atomic.Uint64 // known | uint32(kern)
+
+	mu   sync.Mutex
 	buf  sfnt.Buffer
 	gl   map[rune]glyph
 	kern map[[2]sfnt.GlyphIndex]fixed.Int26_6
 }
 
-func (m *fontMetrics) width(s string, size float64, bold bool) float64 {
-	m.mu.Lock()
-	defer m.mu.Unlock()
-	if m.font == nil {
-		m.font = fileFace(size, bold).Face
-		m.upem = fixed.Int26_6(m.font.UnitsPerEm())
-		m.gl = map[rune]glyph{}
-		m.kern = map[[2]sfnt.GlyphIndex]fixed.Int26_6{}
+const known = 1 << 63
+
+func (m *fontMetrics) init() {
+	m.font = fileFace(10, m.bold).Face
+	m.upem = fixed.Int26_6(m.font.UnitsPerEm())
+	m.gl = map[rune]glyph{}
+	m.kern = map[[2]sfnt.GlyphIndex]fixed.Int26_6{}
+}
+
+// glyphLocked looks r up in the font; a rune the font cannot map takes no room.
+func (m *fontMetrics) glyphLocked(r rune) glyph {
+	g, ok := m.gl[r]
+	if ok {
+		return g
 	}
-	var total fixed.Int26_6
-	var prev sfnt.GlyphIndex
-	hasPrev := false
-	for _, r := range s {
-		g, ok := m.gl[r]
-		if !ok {
-			idx, err := m.font.GlyphIndex(&m.buf, r)
-			if err == nil {
-				g.idx = idx
-				g.adv, err = m.font.GlyphAdvance(&m.buf, idx, m.upem, stdfont.HintingNone)
-			}
-			if err != nil {
-				g = glyph{} // a rune the font cannot map takes no room
-			}
-			m.gl[r] = g
+	idx, err := m.font.GlyphIndex(&m.buf, r)
+	if err == nil {
+		g.idx = idx
+		g.adv, err = m.font.GlyphAdvance(&m.buf, idx, m.upem, stdfont.HintingNone)
+	}
+	if err != nil {
+		g = glyph{}
+	}
+	m.gl[r] = g
+	return g
+}
+
+func (m *fontMetrics) kernLocked(a, b sfnt.GlyphIndex) fixed.Int26_6 {
+	pair := [2]sfnt.GlyphIndex{a, b}
+	k, ok := m.kern[pair]
+	if !ok {
+		var err error
+		k, err = m.font.Kern(&m.buf, a, b, m.upem, stdfont.HintingNone)
+		if err != nil {
+			k = 0
 		}
-		if hasPrev {
-			pair := [2]sfnt.GlyphIndex{prev, g.idx}
-			k, ok := m.kern[pair]
-			if !ok {
-				var err error
-				k, err = m.font.Kern(&m.buf, prev, g.idx, m.upem, stdfont.HintingNone)
-				if err != nil {
-					k = 0
-				}
-				m.kern[pair] = k
-			}
-			total += k
+		m.kern[pair] = k
+	}
+	return k
+}
+
+// glyphOf is r's glyph; slot is slotOf(r).
+func (m *fontMetrics) glyphOf(r rune, slot int) glyph {
+	if slot >= 0 {
+		if v := m.fastGlyph[slot].Load(); v&known != 0 {
+			return glyph{idx: sfnt.GlyphIndex(v >> 32), adv: fixed.Int26_6(int32(uint32(v)))}
 		}
-		total += g.adv
-		prev, hasPrev = g.idx, true
+	}
+	m.mu.Lock()
+	g := m.glyphLocked(r)
+	m.mu.Unlock()
+	if slot >= 0 {
+		m.fastGlyph[slot].Store(known | uint64(g.idx)<<32 | uint64(uint32(g.adv)))
+	}
+	return g
+}
+
+// kernOf is the kerning between glyphs a and b; when both runes have a slot,
+// slots is their pair's index in fastKern, otherwise -1.
+func (m *fontMetrics) kernOf(a, b sfnt.GlyphIndex, slots int) fixed.Int26_6 {
+	if slots >= 0 {
+		if v := m.fastKern[slots].Load(); v&known != 0 {
+			return fixed.Int26_6(int32(uint32(v)))
+		}
+	}
+	m.mu.Lock()
+	k := m.kernLocked(a, b)
+	m.mu.Unlock()
+	if slots >= 0 {
+		m.fastKern[slots].Store(known | uint64(uint32(k)))
+	}
+	return k
+}
+
+func (m *fontMetrics) width(s string, size float64) float64 {
+	m.once.Do(m.init)
+	total, ok := m.asciiWidth(s)
+	if !ok {
+		total = m.runeWidth(s)
 	}
 	return float64(total) * size / float64(m.upem)
 }
 
+// asciiWidth sums a text whose runes (ASCII and the slotted few) and pairs
+// are all in the lock-free tables; ok is false for any other text.
+func (m *fontMetrics) asciiWidth(s string) (total fixed.Int26_6, ok bool) {
+	prev := -1
+	for i := 0; i < len(s); i++ {
+		c := int(s[i])
+		if c >= 0x80 {
+			r, size := utf8.DecodeRuneInString(s[i:])
+			if c = slotOf(r); c < 0 || r == utf8.RuneError {
+				return 0, false
+			}
+			i += size - 1
+		}
+		g := m.fastGlyph[c].Load()
+		if g&known == 0 {
+			return 0, false
+		}
+		if prev >= 0 {
+			k := m.fastKern[prev*fastRunes+c].Load()
+			if k&known == 0 {
+				return 0, false
+			}
+			total += fixed.Int26_6(int32(uint32(k)))
+		}
+		total += fixed.Int26_6(int32(uint32(g)))
+		prev = c
+	}
+	return total, true
+}
+
+// runeWidth sums any text, filling the tables and maps as it goes.
+func (m *fontMetrics) runeWidth(s string) fixed.Int26_6 {
+	var total fixed.Int26_6
+	var prev glyph
+	prevSlot := -1
+	for i, r := range s {
+		slot := slotOf(r)
+		g := m.glyphOf(r, slot)
+		if i > 0 {
+			pair := -1
+			if slot >= 0 && prevSlot >= 0 {
+				pair = prevSlot*fastRunes + slot
+			}
+			total += m.kernOf(prev.idx, g.idx, pair)
+		}
+		total += g.adv
+		prev, prevSlot = g, slot
+	}
+	return total
+}
+
 // measureCache remembers widths by string so re-layout after an edit measures
 // only the texts that changed. One map per style keeps the key a plain string.
+// FontMeasurer's own tables make measuring cheaper than a map look-up, so with
+// it the cache measures directly and keeps only the cut texts.
 type measureCache struct {
 	m      TextMeasurer
+	direct bool
 	widths map[styleKey]map[string]float64
 	cut    map[cutKey]cutText
 }
@@ -146,10 +280,14 @@ type cutText struct {
 }
 
 func newMeasureCache(m TextMeasurer) *measureCache {
-	return &measureCache{m: m, widths: map[styleKey]map[string]float64{}, cut: map[cutKey]cutText{}}
+	_, direct := m.(FontMeasurer)
+	return &measureCache{m: m, direct: direct, widths: map[styleKey]map[string]float64{}, cut: map[cutKey]cutText{}}
 }
 
 func (c *measureCache) table(size float64, bold bool) map[string]float64 {
+	if c.direct {
+		return nil
+	}
 	k := styleKey{size, bold}
 	t := c.widths[k]
 	if t == nil {
@@ -159,9 +297,13 @@ func (c *measureCache) table(size float64, bold bool) map[string]float64 {
 	return t
 }
 
+// width measures s; t is the table of its style (nil when measuring directly).
 func (c *measureCache) width(t map[string]float64, s string, size float64, bold bool) float64 {
 	if s == "" {
 		return 0
+	}
+	if c.direct {
+		return c.m.TextWidth(s, size, bold)
 	}
 	if w, ok := t[s]; ok {
 		return w
@@ -171,18 +313,19 @@ func (c *measureCache) width(t map[string]float64, s string, size float64, bold 
 	return w
 }
 
-// fit returns s cut with an ellipsis so it is at most max wide.
+// fit returns s cut with an ellipsis so it is at most max wide. Only cut
+// texts are remembered: a text that fits costs one width look-up anyway.
 func (c *measureCache) fit(s string, size float64, bold bool, max float64) cutText {
+	t := c.table(size, bold)
+	w := c.width(t, s, size, bold)
+	if w <= max {
+		return cutText{text: s, width: w}
+	}
 	k := cutKey{s, styleKey{size, bold}, max}
 	if ct, ok := c.cut[k]; ok {
 		return ct
 	}
-	t := c.table(size, bold)
-	w := c.width(t, s, size, bold)
-	ct := cutText{text: s, width: w}
-	if w > max {
-		ct = cutToWidth(s, max, func(x string) float64 { return c.width(t, x, size, bold) })
-	}
+	ct := cutToWidth(s, max, func(x string) float64 { return c.width(t, x, size, bold) })
 	c.cut[k] = ct
 	return ct
 }

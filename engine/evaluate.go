@@ -861,12 +861,14 @@ func (r *Result) computeForward() {
 	for i, n := range r.Nodes {
 		if n.Kind == End {
 			if s := sv[i].add(r.payoffS[i]); s.ok {
-				r.pathValue[i] = s.dec()
+				r.pathValue[i], sv[i] = s.dec(), s
 			} else {
 				r.pathValue[i] = r.pathValue[i].Add(r.payoff[i])
+				sv[i] = smallOf(r.pathValue[i])
 			}
 		}
 	}
+	r.pathValueS = sv
 }
 
 // PathRow is one line of the path table: an end node and how it is reached.

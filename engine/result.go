@@ -22,6 +22,7 @@ type Result struct {
 	ties         map[int][]int     // other branches tied with the choice, by node
 	onPolicy     []bool            // reached when following the recommended choices
 	pathValue    []decimal.Decimal // cash from the root to the node (plus payoff at ends)
+	pathValueS   []small           // int64 form of pathValue where it fits
 	pathProb     []decimal.Decimal // product of chance probabilities from the root
 	payoff       []decimal.Decimal // end payoff as evaluated
 	probFlat     []decimal.Decimal // branch probabilities, node i at first[i]:first[i+1]
@@ -144,6 +145,50 @@ func (r *Result) PathValue(n *Node) decimal.Decimal {
 	}
 	r.forward()
 	return r.pathValue[n.index]
+}
+
+// The texts below print a result's numbers exactly as FormatProbability and
+// Format print them, but from the int64 forms the roll-back keeps, so a
+// layout of a large tree need not read every decimal's digits.
+
+// ProbabilityText is FormatProbability(r.Probability(n, i)).
+func (r *Result) ProbabilityText(n *Node, i int) string {
+	if !r.has(n) || i < 0 || i >= len(r.probsOf(n.index)) {
+		return FormatProbability(decimal.Zero)
+	}
+	return formatProbability(r.probsOf(n.index)[i], r.probSOf(n.index)[i])
+}
+
+// CashText is r.Format(r.Cash(n, i)).
+func (r *Result) CashText(n *Node, i int) string {
+	if !r.has(n) || i < 0 || i >= len(r.cashOf(n.index)) {
+		return r.Format(decimal.Zero)
+	}
+	return r.format(r.cashOf(n.index)[i], r.cashSOf(n.index)[i])
+}
+
+// ValueText is r.Format(r.ValueOf(n)).
+func (r *Result) ValueText(n *Node) string {
+	if !r.has(n) {
+		return r.Format(decimal.Zero)
+	}
+	if s, ok := formatSmall(r.valueS[n.index], r.Project.Decimals, r.Project.Currency); ok {
+		return s
+	}
+	return r.Format(r.val(n.index))
+}
+
+// PathValueText is r.Format(r.PathValue(n)).
+func (r *Result) PathValueText(n *Node) string {
+	if !r.has(n) {
+		return r.Format(decimal.Zero)
+	}
+	r.forward()
+	return r.format(r.pathValue[n.index], r.pathValueS[n.index])
+}
+
+func (r *Result) format(d decimal.Decimal, s small) string {
+	return formatValue(d, s, r.Project.Decimals, r.Project.Currency)
 }
 
 // PathProbability is the product of the chance probabilities from the root to n.

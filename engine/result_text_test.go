@@ -1,0 +1,64 @@
+package engine_test
+
+import (
+	"math/rand/v2"
+	"testing"
+
+	"github.com/stretchr/testify/assert"
+	"github.com/stretchr/testify/require"
+
+	"github.com/ramify-app/ramify/engine"
+	"github.com/ramify-app/ramify/engine/enginetest"
+)
+
+// The result's texts come from the roll-back's int64 forms; they must print
+// every number exactly as the one formatter prints the decimal (which is
+// checked against decimal's own rounding in format_test.go), also for values
+// that need the decimal fall-back: huge payoffs, long quotients, fine
+// probabilities, many decimals.
+func TestResultTextsMatchFormat(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 8))
+	odd := []string{"1/3", "-2/7", "123456789012345678901234", "-98765432109876543210.5", "0.00005", "-0.00004", "1e3", "0", "0.125"}
+	checked := 0
+	for trial := 0; trial < 120; trial++ {
+		p := enginetest.RandomProject(rng, enginetest.Options{Nodes: 40, MaxBranches: 4, UseRest: trial%2 == 0, UseCash: true, UseVars: trial%3 == 0})
+		p.Decimals = rng.IntN(21)
+		if trial%4 == 0 {
+			p.Currency = "EUR"
+		}
+		if trial%5 == 0 {
+			p.Risk = engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "5000"}
+		}
+		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+			if n.Kind == engine.End && rng.IntN(3) == 0 {
+				n.Payoff = odd[rng.IntN(len(odd))]
+			}
+			for _, b := range n.Branches {
+				if b.Cash != "" && rng.IntN(3) == 0 {
+					b.Cash = odd[rng.IntN(len(odd))]
+				}
+			}
+			return true
+		})
+		r := engine.Evaluate(p)
+		require.NotNil(t, r)
+		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+			assert.Equal(t, r.Format(r.ValueOf(n)), r.ValueText(n), "value of %s", n.ID)
+			assert.Equal(t, r.Format(r.PathValue(n)), r.PathValueText(n), "path value of %s", n.ID)
+			for i := range n.Branches {
+				assert.Equal(t, engine.FormatProbability(r.Probability(n, i)), r.ProbabilityText(n, i), "probability %s/%d", n.ID, i)
+				assert.Equal(t, r.Format(r.Cash(n, i)), r.CashText(n, i), "cash %s/%d", n.ID, i)
+			}
+			checked++
+			return true
+		})
+	}
+	assert.Greater(t, checked, 2000)
+	// a node the result does not know reads as zero, as the decimal accessors do
+	r := engine.Evaluate(enginetest.RandomProject(rng, enginetest.Options{Nodes: 5}))
+	stranger := &engine.Node{ID: "x"}
+	assert.Equal(t, r.Format(r.ValueOf(stranger)), r.ValueText(stranger))
+	assert.Equal(t, r.Format(r.PathValue(stranger)), r.PathValueText(stranger))
+	assert.Equal(t, engine.FormatProbability(r.Probability(stranger, 0)), r.ProbabilityText(stranger, 0))
+	assert.Equal(t, r.Format(r.Cash(stranger, 0)), r.CashText(stranger, 0))
+}
