@@ -3,8 +3,8 @@ package canvas
 import (
 	"math"
 	"slices"
-	"unsafe"
 	"strings"
+	"unsafe"
 
 	"github.com/shopspring/decimal"
 

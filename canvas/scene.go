@@ -48,6 +48,9 @@ type Options struct {
 	NoteFunc func(n *engine.Node, branch int) []string
 	// Selected is highlighted.
 	Selected Target
+	// MinTextSize leaves out text smaller than this (logical units); the view
+	// sets it when a large tree is seen from so far that such text is a dot.
+	MinTextSize float64
 }
 
 // DefaultOptions is the light theme with every value shown.
@@ -220,8 +223,10 @@ func (b *sceneBuilder) baseline(top, size float64) float64 {
 }
 
 func (b *sceneBuilder) text(role Role, t TextRun, x, top, size float64, bold bool, align Align) Rect {
-	at := Point{x, b.baseline(top, size)}
-	b.s.Prims = append(b.s.Prims, Prim{Kind: PrimText, Role: role, Text: t.Text, At: at, Size: size, Bold: bold, Align: align, Width: t.Width, Tip: t.Full})
+	if size >= b.opts.MinTextSize { // smaller text is left out; its place still counts for hit regions
+		at := Point{x, b.baseline(top, size)}
+		b.s.Prims = append(b.s.Prims, Prim{Kind: PrimText, Role: role, Text: t.Text, At: at, Size: size, Bold: bold, Align: align, Width: t.Width, Tip: t.Full})
+	}
 	left := x
 	switch align {
 	case AlignCenter:

@@ -470,7 +470,7 @@ func (r *viewRenderer) rebuild() {
 	case r.over != nil && v.zoom == r.overKey.zoom && r.overRect.contains(vp):
 		// Still seen from afar: one scene of the overview's area serves both the
 		// image and the hit regions, instead of building the visible part twice.
-		s = Build(v.project, v.result, v.layout, v.opts, r.overRect)
+		s = Build(v.project, v.result, v.layout, v.overviewOptions(), r.overRect)
 		overviewArea = true
 	default:
 		s = Build(v.project, v.result, v.layout, v.opts, vp)
@@ -507,7 +507,7 @@ func (r *viewRenderer) overview(s *Scene, vp Rect, sceneIsArea bool) {
 	case r.over == nil || !inside || key.zoom != r.overKey.zoom:
 		// Nothing usable on screen: draw now.
 		area := Rect{vp.X - vp.W/2, vp.Y - vp.H/2, vp.W * 2, vp.H * 2}
-		img, err := rasterScene(Build(v.project, v.result, v.layout, v.opts, area), area, v.zoom)
+		img, err := rasterScene(Build(v.project, v.result, v.layout, v.overviewOptions(), area), area, v.zoom)
 		if err != nil {
 			return
 		}
@@ -526,7 +526,7 @@ func (r *viewRenderer) overview(s *Scene, vp Rect, sceneIsArea bool) {
 		// build the scene here (it reads the project) and rasterise it in the background.
 		r.overKey = key
 		if !sceneIsArea {
-			s = Build(v.project, v.result, v.layout, v.opts, r.overRect)
+			s = Build(v.project, v.result, v.layout, v.overviewOptions(), r.overRect)
 		}
 		r.queueRaster(&rasterJob{scene: s.rasterCopy(), area: r.overRect, zoom: v.zoom, key: key})
 	}
@@ -544,6 +544,16 @@ func (a Rect) contains(b Rect) bool {
 func (s *Scene) rasterCopy() *Scene {
 	return &Scene{Theme: s.Theme, Prims: append([]Prim(nil), s.Prims...)}
 }
+
+// overviewOptions leave out the text the overview image could not show anyway.
+func (v *View) overviewOptions() Options {
+	o := v.opts
+	o.MinTextSize = minOverviewText / v.zoom
+	return o
+}
+
+// minOverviewText is the smallest text, in screen pixels, an overview image draws.
+const minOverviewText = 3.5
 
 // rasterJob is one overview image to draw from a finished scene.
 type rasterJob struct {
@@ -599,7 +609,7 @@ func rasterScene(s *Scene, area Rect, zoom float64) (image.Image, error) {
 	}
 	keep := s.Prims[:0:0]
 	for _, p := range s.Prims {
-		if p.Kind != PrimText || p.Size*zoom >= 3.5 {
+		if p.Kind != PrimText || p.Size*zoom >= minOverviewText {
 			keep = append(keep, p)
 		}
 	}
