@@ -210,13 +210,43 @@ func (c *cachedNumber) set(d decimal.Decimal, s string) string {
 	return s
 }
 
+// keyedNumber is a cachedNumber that can also remember a value by the
+// result's ValueKey, so an unchanged value is recognised without its decimal.
+type keyedNumber struct {
+	cachedNumber
+	k engine.ValueKey // set when the text was cached by key (then d is unused)
+}
+
+func (c *keyedNumber) holds(d decimal.Decimal) bool { return !c.k.Set() && c.cachedNumber.holds(d) }
+
+func (c *keyedNumber) set(d decimal.Decimal, s string) string {
+	c.k = engine.ValueKey{}
+	return c.cachedNumber.set(d, s)
+}
+
+func (c *keyedNumber) get(d decimal.Decimal, format func(decimal.Decimal) string) string {
+	if !c.holds(d) {
+		c.set(d, format(d))
+	}
+	return c.s
+}
+
+// holdsKey reports whether the cached text is the one for the value with key k.
+func (c *keyedNumber) holdsKey(k engine.ValueKey) bool { return c.s != "" && k.Set() && c.k == k }
+
+// setKey caches s as the text of the value with the set key k.
+func (c *keyedNumber) setKey(k engine.ValueKey, s string) string {
+	c.k, c.d, c.s = k, decimal.Decimal{}, s
+	return s
+}
+
 // nodeEntry is what a Layouter remembers about one node.
 type nodeEntry struct {
 	NodeTexts
 	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed
 	valueSrc                              string
 	prob, cash                            cachedNumber
-	value                                 cachedNumber // the value beside the node, or an end's path payoff
+	value                                 keyedNumber // the value beside the node, or an end's path payoff
 	notesSrc, problemsSrc                 []string
 	hiddenSrc                             int32
 	seen                                  uint32
@@ -479,20 +509,24 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			}
 		case r != nil:
 			e.Payoff = TextRun{}
-			v, isCE := r.ValueOf(n), false
+			var ce decimal.Decimal
+			isCE := false
 			if opts.ShowCertaintyEquivalent {
-				if ce, ok := r.CertaintyEquivalent(n); ok {
-					v, isCE = ce, true
-				}
+				ce, isCE = r.CertaintyEquivalent(n)
 			}
 			switch {
 			case r.Broken(n):
 				number(&e.Value, &e.valueSrc, valT, noValue, th.ValueSize, true)
 			case isCE:
-				number(&e.Value, &e.valueSrc, valT, e.value.get(v, format), th.ValueSize, true)
+				number(&e.Value, &e.valueSrc, valT, e.value.get(ce, format), th.ValueSize, true)
 			default:
 				s := e.value.s
-				if !e.value.holds(v) {
+				if k := r.ValueKey(n); k.Set() {
+					// the int64 form: compared without making the decimal
+					if !e.value.holdsKey(k) {
+						s = e.value.setKey(k, r.ValueText(n))
+					}
+				} else if v := r.ValueOf(n); !e.value.holds(v) {
 					s = e.value.set(v, r.ValueText(n))
 				}
 				number(&e.Value, &e.valueSrc, valT, s, th.ValueSize, true)

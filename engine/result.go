@@ -218,3 +218,26 @@ func (r *Result) Format(d decimal.Decimal) string {
 
 // Decimal is the exact decimal type every value uses.
 type Decimal = decimal.Decimal
+
+// ValueKey stands for ValueOf(n) without its digits, so a caller that keeps
+// texts (the canvas layout) can tell whether a value changed without making
+// the decimal. Two set keys that are equal hold equal values; unequal keys
+// may still hold equal values. A key that is not set (the value needs the
+// decimal) matches nothing: compare ValueOf then.
+type ValueKey struct {
+	c  int64
+	e  int32
+	ok bool
+}
+
+// Set reports whether k stands for a value (see ValueKey).
+func (k ValueKey) Set() bool { return k.ok }
+
+// ValueKey is the key of ValueOf(n); it does not allocate.
+func (r *Result) ValueKey(n *Node) ValueKey {
+	if !r.has(n) {
+		return ValueKey{}
+	}
+	s := r.valueS[n.index]
+	return ValueKey{c: s.c, e: s.e, ok: s.ok}
+}

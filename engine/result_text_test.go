@@ -62,3 +62,61 @@ func TestResultTextsMatchFormat(t *testing.T) {
 	assert.Equal(t, engine.FormatProbability(r.Probability(stranger, 0)), r.ProbabilityText(stranger, 0))
 	assert.Equal(t, r.Format(r.Cash(stranger, 0)), r.CashText(stranger, 0))
 }
+
+// ValueKey lets the layout see whether a value changed without its decimal:
+// equal set keys must mean equal decimal values (checked with decimal's own
+// Equal), within a result, across re-evaluations and after edits.
+func TestValueKeyMatchesDecimalValues(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 17))
+	odd := []string{"1/3", "123456789012345678901234", "-2.5", "0", "7", "0.001"}
+	set, sameKey := 0, 0
+	for trial := 0; trial < 60; trial++ {
+		p := enginetest.RandomProject(rng, enginetest.Options{Nodes: 40, MaxBranches: 4, UseRest: trial%2 == 0, UseCash: true})
+		if trial%5 == 0 {
+			p.Risk = engine.RiskAttitude{Mode: engine.RiskExponential, Tolerance: "5000"}
+		}
+		type kv struct {
+			k engine.ValueKey
+			v engine.Decimal
+		}
+		var all []kv
+		take := func(r *engine.Result) {
+			engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+				all = append(all, kv{r.ValueKey(n), r.ValueOf(n)})
+				return true
+			})
+		}
+		r1 := engine.Evaluate(p)
+		take(r1)
+		r2 := engine.Evaluate(p) // the same project again: every set key repeats
+		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+			if r1.ValueKey(n).Set() {
+				assert.Equal(t, r1.ValueKey(n), r2.ValueKey(n), "re-evaluated %s", n.ID)
+			}
+			return true
+		})
+		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
+			if n.Kind == engine.End && rng.IntN(4) == 0 {
+				n.Payoff = odd[rng.IntN(len(odd))]
+			}
+			return true
+		})
+		take(engine.Evaluate(p))
+		for i, a := range all {
+			if !a.k.Set() {
+				continue
+			}
+			set++
+			for _, b := range all[i+1:] {
+				if b.k.Set() && a.k == b.k {
+					sameKey++
+					assert.True(t, a.v.Equal(b.v), "key %v: %s vs %s", a.k, a.v, b.v)
+				}
+			}
+		}
+	}
+	assert.Greater(t, set, 2000)
+	assert.Greater(t, sameKey, 1000)
+	stranger := &engine.Node{ID: "x"}
+	assert.False(t, engine.Evaluate(enginetest.RandomProject(rng, enginetest.Options{Nodes: 5})).ValueKey(stranger).Set())
+}
