@@ -2,8 +2,11 @@ package canvas
 
 import (
 	"math"
+	"runtime"
 	"slices"
 	"strings"
+	"sync"
+	"sync/atomic"
 	"unsafe"
 
 	"github.com/shopspring/decimal"
@@ -399,6 +402,15 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	case cap(l.Boxes) < lo.last:
 		l.Boxes = make([]NodeBox, 0, lo.last+lo.last/8+16)
 	}
+	// The first layout of a large evaluated tree formats and measures its
+	// numbers and labels on all cores first (see prefill); the walk below then
+	// finds them cached, exactly as a re-layout finds unchanged texts.
+	var pre []nodeEntry // entries by result index, texts filled in
+	ri := 0             // the result index of the node the walk visits next
+	if len(lo.nodes) == 0 && lo.entries == nil && r != nil && mc.direct && len(r.Problems) == 0 &&
+		len(r.Nodes) >= prefillMin && runtime.GOMAXPROCS(0) > 1 {
+		pre = prefill(r, mc, th, opts)
+	}
 	if c := cap(l.Boxes); cap(lo.nodes) < c {
 		lo.nodes = slices.Grow(lo.nodes, c-len(lo.nodes))
 		lo.order = slices.Grow(lo.order, c-len(lo.order))
@@ -421,6 +433,13 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			}
 			if lo.entries != nil {
 				e = lo.entries[n]
+			}
+			if e == nil && pre != nil {
+				if ri < len(pre) && r.Nodes[ri] == n {
+					e = &pre[ri]
+				} else {
+					pre = nil // the walk left the result's preorder: no more prefilled entries
+				}
 			}
 			if e == nil {
 				e = lo.newEntry()
@@ -576,6 +595,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				}
 			}
 		}
+		ri += 1 + b.Hidden // a collapsed node's hidden subtree follows it in the result's preorder
 		lo.ext.add(&b)
 		l.Boxes = append(l.Boxes, b)
 	}
@@ -605,6 +625,83 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		l.kids[pb.kid0+pb.nkids] = int32(i)
 		pb.nkids++
 	}
+}
+
+// prefillMin is the smallest tree whose first layout formats and measures
+// in parallel: below it starting the goroutines costs more than it saves.
+var prefillMin = 2048
+
+// prefill returns a zero entry for every node of r, by result index, with the
+// evaluated numbers (probability, cash, value or path payoff) formatted and
+// measured and the branch labels that fit measured, done by GOMAXPROCS
+// goroutines over chunks of the nodes. It fills only what collect would put
+// there itself, the same way, so collect finds those texts current and keeps
+// them; anything collect decides differently (a broken node, a folded end) it
+// simply overwrites. Requires a measurer safe for concurrent use (FontMeasurer).
+func prefill(r *engine.Result, mc *measureCache, th *Theme, opts Options) []nodeEntry {
+	r.PathValue(r.Project.Root) // the lazy forward pass, once, before the goroutines read it
+	pre := make([]nodeEntry, len(r.Nodes))
+	ce := opts.ShowCertaintyEquivalent && r.RiskActive()
+	width := mc.m.TextWidth
+	fill := func(i int) {
+		n, e := r.Nodes[i], &pre[i]
+		if parent, bi := r.ParentOf(n); parent != nil && bi >= 0 && bi < len(parent.Branches) {
+			br := parent.Branches[bi]
+			if lab := br.Label; lab != "" { // a label that must be cut is left to collect
+				t := cleanText(lab)
+				if w := width(t, th.LabelSize, false); w <= th.MaxLabelWidth {
+					e.labelSrc, e.Label = lab, TextRun{Text: t, Width: w}
+				}
+			}
+			if parent.Kind == engine.Chance {
+				t := e.prob.set(r.Probability(parent, bi), r.ProbabilityText(parent, bi))
+				e.Prob, e.probSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
+			}
+			if strings.TrimSpace(br.Cash) != "" {
+				t := e.cash.set(r.Cash(parent, bi), r.CashText(parent, bi))
+				e.Cash, e.cashSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
+			}
+		}
+		if r.Broken(n) {
+			return
+		}
+		if n.Kind == engine.End && !(n.Collapsed && len(n.Branches) > 0) {
+			t := e.value.set(r.PathValue(n), r.PathValueText(n))
+			e.Payoff, e.payoffSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
+			return
+		}
+		if ce {
+			return
+		}
+		var t string
+		if k := r.ValueKey(n); k.Set() {
+			t = e.value.setKey(k, r.ValueText(n))
+		} else {
+			t = e.value.set(r.ValueOf(n), r.ValueText(n))
+		}
+		e.Value, e.valueSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
+	}
+	const chunk = 256
+	var next atomic.Int64
+	work := func() {
+		for {
+			hi := int(next.Add(chunk))
+			lo := hi - chunk
+			if lo >= len(pre) {
+				return
+			}
+			for i := lo; i < min(hi, len(pre)); i++ {
+				fill(i)
+			}
+		}
+	}
+	var wg sync.WaitGroup
+	for range runtime.GOMAXPROCS(0) - 1 {
+		wg.Go(work)
+	}
+	work()
+	wg.Wait()
+	return pre
 }
 
 // entryChunk is how many entries one chunk holds: as many as fit in 32 KiB,
