@@ -405,7 +405,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	// The first layout of a large evaluated tree formats and measures its
 	// numbers and labels on all cores first (see prefill); the walk below then
 	// finds them cached, exactly as a re-layout finds unchanged texts.
-	var pre []nodeEntry // entries by result index, texts filled in
+	var pre [][]nodeEntry // entries by result index (in chunks of prefillChunk), texts filled in
 	ri := 0             // the result index of the node the walk visits next
 	if len(lo.nodes) == 0 && lo.entries == nil && r != nil && mc.direct && len(r.Problems) == 0 &&
 		len(r.Nodes) >= prefillMin && runtime.GOMAXPROCS(0) > 1 {
@@ -435,8 +435,8 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				e = lo.entries[n]
 			}
 			if e == nil && pre != nil {
-				if ri < len(pre) && r.Nodes[ri] == n {
-					e = &pre[ri]
+				if ri < len(r.Nodes) && r.Nodes[ri] == n {
+					e = &pre[ri/prefillChunk][ri%prefillChunk]
 				} else {
 					pre = nil // the walk left the result's preorder: no more prefilled entries
 				}
@@ -631,20 +631,24 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 // in parallel: below it starting the goroutines costs more than it saves.
 var prefillMin = 2048
 
+// prefillChunk is how many entries one prefill step allocates and fills.
+const prefillChunk = 256
+
 // prefill returns a zero entry for every node of r, by result index, with the
 // evaluated numbers (probability, cash, value or path payoff) formatted and
 // measured and the branch labels that fit measured, done by GOMAXPROCS
-// goroutines over chunks of the nodes. It fills only what collect would put
+// goroutines over chunks of the nodes; each allocates (and so clears) its
+// own chunks. It fills only what collect would put
 // there itself, the same way, so collect finds those texts current and keeps
 // them; anything collect decides differently (a broken node, a folded end) it
 // simply overwrites. Requires a measurer safe for concurrent use (FontMeasurer).
-func prefill(r *engine.Result, mc *measureCache, th *Theme, opts Options) []nodeEntry {
+func prefill(r *engine.Result, mc *measureCache, th *Theme, opts Options) [][]nodeEntry {
 	r.PathValue(r.Project.Root) // the lazy forward pass, once, before the goroutines read it
-	pre := make([]nodeEntry, len(r.Nodes))
+	pre := make([][]nodeEntry, (len(r.Nodes)+prefillChunk-1)/prefillChunk)
 	ce := opts.ShowCertaintyEquivalent && r.RiskActive()
 	width := mc.m.TextWidth
-	fill := func(i int) {
-		n, e := r.Nodes[i], &pre[i]
+	fill := func(i int, e *nodeEntry) {
+		n := r.Nodes[i]
 		if parent, bi := r.ParentOf(n); parent != nil && bi >= 0 && bi < len(parent.Branches) {
 			br := parent.Branches[bi]
 			if lab := br.Label; lab != "" { // a label that must be cut is left to collect
@@ -681,18 +685,20 @@ func prefill(r *engine.Result, mc *measureCache, th *Theme, opts Options) []node
 		}
 		e.Value, e.valueSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
 	}
-	const chunk = 256
 	var next atomic.Int64
 	work := func() {
 		for {
-			hi := int(next.Add(chunk))
-			lo := hi - chunk
-			if lo >= len(pre) {
+			c := int(next.Add(1)) - 1
+			if c >= len(pre) {
 				return
 			}
-			for i := lo; i < min(hi, len(pre)); i++ {
-				fill(i)
+			lo := c * prefillChunk
+			hi := min(lo+prefillChunk, len(r.Nodes))
+			entries := make([]nodeEntry, hi-lo)
+			for i := lo; i < hi; i++ {
+				fill(i, &entries[i-lo])
 			}
+			pre[c] = entries
 		}
 	}
 	var wg sync.WaitGroup
