@@ -250,9 +250,21 @@ type nodeEntry struct {
 	valueSrc                              string
 	prob, cash                            cachedNumber
 	value                                 keyedNumber // the value beside the node, or an end's path payoff
-	notesSrc, problemsSrc                 []string
+	lists                                 *listSources // nil while the node has neither notes nor problems
 	hiddenSrc                             int32
 	seen                                  uint32
+}
+
+// listSources are the notes and problem messages a node's texts were made
+// from. Few nodes have any, so entries keep them behind a pointer.
+type listSources struct{ notes, problems []string }
+
+// sources returns e's list sources, made when first needed.
+func (e *nodeEntry) sources() *listSources {
+	if e.lists == nil {
+		e.lists = &listSources{}
+	}
+	return e.lists
 }
 
 // numberSource marks a text that shows an evaluated number, not a source text.
@@ -501,8 +513,12 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		} else {
 			e.Label, e.Prob, e.Cash = TextRun{}, TextRun{}, TextRun{}
 		}
-		if !sameStrings(notes, e.notesSrc) {
-			e.notesSrc = notes
+		var notesSrc, problemsSrc []string
+		if e.lists != nil {
+			notesSrc, problemsSrc = e.lists.notes, e.lists.problems
+		}
+		if !sameStrings(notes, notesSrc) {
+			e.sources().notes = notes
 			e.Notes = nil
 			for _, s := range notes {
 				e.Notes = append(e.Notes, fit(s, th.NoteSize, th.MaxNoteWidth))
@@ -569,8 +585,8 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				msgs = append(msgs[:len(msgs):len(msgs)], itoa(inside)+" problem(s) in the folded part")
 			}
 		}
-		if !sameStrings(msgs, e.problemsSrc) {
-			e.problemsSrc = msgs
+		if !sameStrings(msgs, problemsSrc) {
+			e.sources().problems = msgs
 			e.Problems = nil
 			for _, m := range msgs {
 				e.Problems = append(e.Problems, fit(m, th.NoteSize, th.MaxNoteWidth))
