@@ -770,7 +770,8 @@ type rowScratch struct {
 
 func (s *rowScratch) floats(p *[]float64, n int) []float64 {
 	if cap(*p) < n {
-		*p = make([]float64, n, n+n/4)
+		*p = make([]float64, n, n+n/4) // new memory is already zero
+		return *p
 	}
 	*p = (*p)[:n]
 	clear(*p)
@@ -779,7 +780,8 @@ func (s *rowScratch) floats(p *[]float64, n int) []float64 {
 
 func (s *rowScratch) int32s(p *[]int32, n int) []int32 {
 	if cap(*p) < n {
-		*p = make([]int32, n, n+n/4)
+		*p = make([]int32, n, n+n/4) // new memory is already zero
+		return *p
 	}
 	*p = (*p)[:n]
 	clear(*p)
