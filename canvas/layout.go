@@ -396,6 +396,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		return true
 	}
 
+	hasNotes := opts.Notes != nil || opts.NoteFunc != nil
 	lo.ext.reset(th)
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
 	lo.turn ^= 1
@@ -501,7 +502,9 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			default:
 				source(&e.Cash, &e.cashSrc, br.Cash, th.NumberSize, th.MaxLabelWidth/2)
 			}
-			notes = opts.notesFor(parent, bi, n)
+			if hasNotes { // notesFor copies the whole Options: skip it when it can only return nil
+				notes = opts.notesFor(parent, bi, n)
+			}
 			if r != nil && parent.Kind == engine.Decision {
 				for _, t := range r.Ties(parent) {
 					if t == bi {
