@@ -477,7 +477,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			switch {
 			case parent.Kind != engine.Chance:
 				e.Prob, e.probSrc = TextRun{}, ""
-			case r != nil && badField[fieldKey{parent.ID, bi, "probability"}]:
+			case badField != nil && badField[fieldKey{parent.ID, bi, "probability"}]:
 				source(&e.Prob, &e.probSrc, raw(br.Probability), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
 				s := e.prob.s
@@ -491,7 +491,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			switch {
 			case strings.TrimSpace(br.Cash) == "":
 				e.Cash, e.cashSrc = TextRun{}, ""
-			case r != nil && badField[fieldKey{parent.ID, bi, "cash"}]:
+			case badField != nil && badField[fieldKey{parent.ID, bi, "cash"}]:
 				source(&e.Cash, &e.cashSrc, raw(br.Cash), th.NumberSize, th.MaxLabelWidth/2)
 			case r != nil:
 				s := e.cash.s
@@ -532,7 +532,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		case n.Kind == engine.End && !collapsed:
 			e.Value = TextRun{}
 			switch {
-			case r != nil && badField[fieldKey{n.ID, -1, "payoff"}]:
+			case badField != nil && badField[fieldKey{n.ID, -1, "payoff"}]:
 				source(&e.Payoff, &e.payoffSrc, raw(n.Payoff), th.ValueSize, th.MaxLabelWidth/2)
 			case r != nil && r.Broken(n):
 				number(&e.Payoff, &e.payoffSrc, valT, noValue, th.ValueSize, true)
@@ -572,7 +572,10 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		default:
 			e.Payoff, e.Value = TextRun{}, TextRun{}
 		}
-		msgs := problems[n.ID]
+		var msgs []string
+		if problems != nil {
+			msgs = problems[n.ID]
+		}
 		hidden := 0
 		if collapsed {
 			hidden = -1
