@@ -249,7 +249,7 @@ type nodeEntry struct {
 	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed
 	valueSrc                              string
 	prob, cash                            cachedNumber
-	value                                 keyedNumber // the value beside the node, or an end's path payoff
+	value                                 keyedNumber  // the value beside the node, or an end's path payoff
 	lists                                 *listSources // nil while the node has neither notes nor problems
 	hiddenSrc                             int32
 	seen                                  uint32
@@ -416,13 +416,14 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		l.Boxes = make([]NodeBox, 0, lo.last+lo.last/8+16)
 	}
 	// The first layout of a large evaluated tree formats and measures its
-	// numbers and labels on all cores first (see prefill); the walk below then
-	// finds them cached, exactly as a re-layout finds unchanged texts.
-	var pre [][]nodeEntry // entries by result index (in chunks of prefillChunk), texts filled in
-	ri := 0             // the result index of the node the walk visits next
+	// numbers and labels on the other cores ahead of the walk (see
+	// prefiller); the walk finds them cached, as a re-layout finds unchanged texts.
+	var pf *prefiller // fills entries by result index while the walk runs
+	usePre := false   // the walk still follows the result's preorder
+	ri := 0           // the result index of the node the walk visits next
 	if len(lo.nodes) == 0 && lo.entries == nil && r != nil && mc.direct && len(r.Problems) == 0 &&
 		len(r.Nodes) >= prefillMin && runtime.GOMAXPROCS(0) > 1 {
-		pre = prefill(r, mc, th, opts)
+		pf, usePre = startPrefill(r, mc, th, opts), true
 	}
 	if c := cap(l.Boxes); cap(lo.nodes) < c {
 		lo.nodes = slices.Grow(lo.nodes, c-len(lo.nodes))
@@ -447,11 +448,11 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			if lo.entries != nil {
 				e = lo.entries[n]
 			}
-			if e == nil && pre != nil {
+			if e == nil && usePre {
 				if ri < len(r.Nodes) && r.Nodes[ri] == n {
-					e = &pre[ri/prefillChunk][ri%prefillChunk]
+					e = pf.entry(ri)
 				} else {
-					pre = nil // the walk left the result's preorder: no more prefilled entries
+					usePre = false // the walk left the result's preorder: no more prefilled entries
 				}
 			}
 			if e == nil {
@@ -622,6 +623,9 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 		l.Boxes = append(l.Boxes, b)
 	}
 	lo.stack = stack[:0]
+	if pf != nil {
+		pf.wait()
+	}
 	lo.nodes, lo.order = lo.nodes[:len(l.Boxes)], lo.order[:len(l.Boxes)]
 
 	// Children lists: preorder makes a parent precede its children, and
@@ -656,80 +660,110 @@ var prefillMin = 2048
 // prefillChunk is how many entries one prefill step allocates and fills.
 const prefillChunk = 256
 
-// prefill returns a zero entry for every node of r, by result index, with the
-// evaluated numbers (probability, cash, value or path payoff) formatted and
-// measured and the branch labels that fit measured, done by GOMAXPROCS
-// goroutines over chunks of the nodes; each allocates (and so clears) its
-// own chunks. It fills only what collect would put
-// there itself, the same way, so collect finds those texts current and keeps
-// them; anything collect decides differently (a broken node, a folded end) it
-// simply overwrites. Requires a measurer safe for concurrent use (FontMeasurer).
-func prefill(r *engine.Result, mc *measureCache, th *Theme, opts Options) [][]nodeEntry {
+// prefiller gives a zero entry for every node of r, by result index, with
+// the evaluated numbers (probability, cash, value or path payoff) formatted
+// and measured and the branch labels that fit measured. Its goroutines fill
+// chunks of prefillChunk entries in result order, each allocating (and so
+// clearing) its own, while collect walks the tree; collect asks for a node's
+// entry with entry, filling chunks itself when it catches up. It fills only
+// what collect would put there itself, the same way, so collect finds those
+// texts current and keeps them; anything collect decides differently (a
+// broken node, a folded end) it simply overwrites. Requires a measurer safe
+// for concurrent use (FontMeasurer).
+type prefiller struct {
+	r      *engine.Result
+	th     *Theme
+	ce     bool
+	width  func(string, float64, bool) float64
+	chunks [][]nodeEntry
+	done   []atomic.Bool // chunks[c] is filled and may be read
+	next   atomic.Int64  // the next chunk to claim
+	wg     sync.WaitGroup
+}
+
+func startPrefill(r *engine.Result, mc *measureCache, th *Theme, opts Options) *prefiller {
 	r.PathValue(r.Project.Root) // the lazy forward pass, once, before the goroutines read it
-	pre := make([][]nodeEntry, (len(r.Nodes)+prefillChunk-1)/prefillChunk)
-	ce := opts.ShowCertaintyEquivalent && r.RiskActive()
-	width := mc.m.TextWidth
-	fill := func(i int, e *nodeEntry) {
-		n := r.Nodes[i]
-		if parent, bi := r.ParentOf(n); parent != nil && bi >= 0 && bi < len(parent.Branches) {
-			br := parent.Branches[bi]
-			if lab := br.Label; lab != "" { // a label that must be cut is left to collect
-				t := cleanText(lab)
-				if w := width(t, th.LabelSize, false); w <= th.MaxLabelWidth {
-					e.labelSrc, e.Label = lab, TextRun{Text: t, Width: w}
-				}
-			}
-			if parent.Kind == engine.Chance {
-				t := e.prob.set(r.Probability(parent, bi), r.ProbabilityText(parent, bi))
-				e.Prob, e.probSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
-			}
-			if strings.TrimSpace(br.Cash) != "" {
-				t := e.cash.set(r.Cash(parent, bi), r.CashText(parent, bi))
-				e.Cash, e.cashSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
-			}
-		}
-		if r.Broken(n) {
-			return
-		}
-		if n.Kind == engine.End && !(n.Collapsed && len(n.Branches) > 0) {
-			t := e.value.set(r.PathValue(n), r.PathValueText(n))
-			e.Payoff, e.payoffSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
-			return
-		}
-		if ce {
-			return
-		}
-		var t string
-		if k := r.ValueKey(n); k.Set() {
-			t = e.value.setKey(k, r.ValueText(n))
-		} else {
-			t = e.value.set(r.ValueOf(n), r.ValueText(n))
-		}
-		e.Value, e.valueSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
-	}
-	var next atomic.Int64
-	work := func() {
-		for {
-			c := int(next.Add(1)) - 1
-			if c >= len(pre) {
-				return
-			}
-			lo := c * prefillChunk
-			hi := min(lo+prefillChunk, len(r.Nodes))
-			entries := make([]nodeEntry, hi-lo)
-			for i := lo; i < hi; i++ {
-				fill(i, &entries[i-lo])
-			}
-			pre[c] = entries
-		}
-	}
-	var wg sync.WaitGroup
+	nc := (len(r.Nodes) + prefillChunk - 1) / prefillChunk
+	pf := &prefiller{r: r, th: th, ce: opts.ShowCertaintyEquivalent && r.RiskActive(), width: mc.m.TextWidth,
+		chunks: make([][]nodeEntry, nc), done: make([]atomic.Bool, nc)}
 	for range runtime.GOMAXPROCS(0) - 1 {
-		wg.Go(work)
+		pf.wg.Go(func() {
+			for pf.fillNext() {
+			}
+		})
 	}
-	work()
-	wg.Wait()
-	return pre
+	return pf
+}
+
+// fillNext claims the next chunk and fills it; false when none is left.
+func (pf *prefiller) fillNext() bool {
+	c := int(pf.next.Add(1)) - 1
+	if c >= len(pf.chunks) {
+		return false
+	}
+	lo := c * prefillChunk
+	hi := min(lo+prefillChunk, len(pf.r.Nodes))
+	entries := make([]nodeEntry, hi-lo)
+	for i := lo; i < hi; i++ {
+		pf.fill(i, &entries[i-lo])
+	}
+	pf.chunks[c] = entries
+	pf.done[c].Store(true)
+	return true
+}
+
+// entry is the prefilled entry of the node with result index i.
+func (pf *prefiller) entry(i int) *nodeEntry {
+	c := i / prefillChunk
+	for !pf.done[c].Load() {
+		if !pf.fillNext() {
+			runtime.Gosched() // another goroutine is filling chunk c
+		}
+	}
+	return &pf.chunks[c][i%prefillChunk]
+}
+
+// wait returns when every goroutine is done.
+func (pf *prefiller) wait() { pf.wg.Wait() }
+
+func (pf *prefiller) fill(i int, e *nodeEntry) {
+	r, th, width := pf.r, pf.th, pf.width
+	n := r.Nodes[i]
+	if parent, bi := r.ParentOf(n); parent != nil && bi >= 0 && bi < len(parent.Branches) {
+		br := parent.Branches[bi]
+		if lab := br.Label; lab != "" { // a label that must be cut is left to collect
+			t := cleanText(lab)
+			if w := width(t, th.LabelSize, false); w <= th.MaxLabelWidth {
+				e.labelSrc, e.Label = lab, TextRun{Text: t, Width: w}
+			}
+		}
+		if parent.Kind == engine.Chance {
+			t := e.prob.set(r.Probability(parent, bi), r.ProbabilityText(parent, bi))
+			e.Prob, e.probSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
+		}
+		if strings.TrimSpace(br.Cash) != "" {
+			t := e.cash.set(r.Cash(parent, bi), r.CashText(parent, bi))
+			e.Cash, e.cashSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
+		}
+	}
+	if r.Broken(n) {
+		return
+	}
+	if n.Kind == engine.End && !(n.Collapsed && len(n.Branches) > 0) {
+		t := e.value.set(r.PathValue(n), r.PathValueText(n))
+		e.Payoff, e.payoffSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
+		return
+	}
+	if pf.ce {
+		return
+	}
+	var t string
+	if k := r.ValueKey(n); k.Set() {
+		t = e.value.setKey(k, r.ValueText(n))
+	} else {
+		t = e.value.set(r.ValueOf(n), r.ValueText(n))
+	}
+	e.Value, e.valueSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
 }
 
 // entryChunk is how many entries one chunk holds: as many as fit in 32 KiB,
