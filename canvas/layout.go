@@ -704,8 +704,9 @@ func (pf *prefiller) fillNext() bool {
 	lo := c * prefillChunk
 	hi := min(lo+prefillChunk, len(pf.r.Nodes))
 	entries := make([]nodeEntry, hi-lo)
+	var texts textBuffer
 	for i := lo; i < hi; i++ {
-		pf.fill(i, &entries[i-lo])
+		pf.fill(i, &entries[i-lo], &texts)
 	}
 	pf.chunks[c] = entries
 	pf.done[c].Store(true)
@@ -726,7 +727,25 @@ func (pf *prefiller) entry(i int) *nodeEntry {
 // wait returns when every goroutine is done.
 func (pf *prefiller) wait() { pf.wg.Wait() }
 
-func (pf *prefiller) fill(i int, e *nodeEntry) {
+// textBuffer keeps many short texts in a few shared blocks: one allocation
+// per block instead of one per number. Bytes once handed out as a string are
+// never written again (a full block is left as it is, not grown in place).
+type textBuffer struct{ b []byte }
+
+// add appends the text that appendText makes and returns it as a string.
+func (tb *textBuffer) add(appendText func([]byte) []byte) string {
+	if cap(tb.b)-len(tb.b) < 64 {
+		tb.b = make([]byte, 0, 2048)
+	}
+	start := len(tb.b)
+	tb.b = appendText(tb.b) // a longer text than the room left moves the block: earlier strings keep the old one
+	if len(tb.b) == start {
+		return ""
+	}
+	return unsafe.String(&tb.b[start], len(tb.b)-start)
+}
+
+func (pf *prefiller) fill(i int, e *nodeEntry, tb *textBuffer) {
 	r, th, width := pf.r, pf.th, pf.width
 	n := r.Nodes[i]
 	if parent, bi := r.ParentOf(n); parent != nil && bi >= 0 && bi < len(parent.Branches) {
@@ -738,11 +757,11 @@ func (pf *prefiller) fill(i int, e *nodeEntry) {
 			}
 		}
 		if parent.Kind == engine.Chance {
-			t := e.prob.set(r.Probability(parent, bi), r.ProbabilityText(parent, bi))
+			t := e.prob.set(r.Probability(parent, bi), tb.add(func(b []byte) []byte { return r.AppendProbabilityText(b, parent, bi) }))
 			e.Prob, e.probSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
 		}
 		if strings.TrimSpace(br.Cash) != "" {
-			t := e.cash.set(r.Cash(parent, bi), r.CashText(parent, bi))
+			t := e.cash.set(r.Cash(parent, bi), tb.add(func(b []byte) []byte { return r.AppendCashText(b, parent, bi) }))
 			e.Cash, e.cashSrc = TextRun{Text: t, Width: width(t, th.NumberSize, false)}, numberSource
 		}
 	}
@@ -750,18 +769,18 @@ func (pf *prefiller) fill(i int, e *nodeEntry) {
 		return
 	}
 	if n.Kind == engine.End && !(n.Collapsed && len(n.Branches) > 0) {
-		t := e.value.set(r.PathValue(n), r.PathValueText(n))
+		t := e.value.set(r.PathValue(n), tb.add(func(b []byte) []byte { return r.AppendPathValueText(b, n) }))
 		e.Payoff, e.payoffSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
 		return
 	}
 	if pf.ce {
 		return
 	}
-	var t string
+	t := tb.add(func(b []byte) []byte { return r.AppendValueText(b, n) })
 	if k := r.ValueKey(n); k.Set() {
-		t = e.value.setKey(k, r.ValueText(n))
+		e.value.setKey(k, t)
 	} else {
-		t = e.value.set(r.ValueOf(n), r.ValueText(n))
+		e.value.set(r.ValueOf(n), t)
 	}
 	e.Value, e.valueSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
 }

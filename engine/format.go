@@ -39,16 +39,33 @@ func FormatNumber(d decimal.Decimal, decimals int) string {
 // formatSmall is FormatValue of s; ok is false when s is not set or the
 // int64 path cannot print it (then the decimal must).
 func formatSmall(s small, decimals int, unit string) (string, bool) {
-	decimals = max(decimals, 0)
 	var buf [64]byte
-	b, ok := appendNumberFast(buf[:0], s, decimals)
+	b, ok := appendSmall(buf[:0], s, decimals, unit)
 	if !ok {
 		return "", false
 	}
-	if unit != "" {
-		b = append(append(b, ' '), unit...)
-	}
 	return string(b), true
+}
+
+// appendSmall appends FormatValue of s to b when the int64 path can print it.
+func appendSmall(b []byte, s small, decimals int, unit string) ([]byte, bool) {
+	decimals = max(decimals, 0)
+	out, ok := appendNumberFast(b, s, decimals)
+	if !ok {
+		return b, false
+	}
+	if unit != "" {
+		out = append(append(out, ' '), unit...)
+	}
+	return out, true
+}
+
+// appendValue appends formatValue(d, s, decimals, unit) to b.
+func appendValue(b []byte, d decimal.Decimal, s small, decimals int, unit string) []byte {
+	if out, ok := appendSmall(b, s, decimals, unit); ok {
+		return out
+	}
+	return append(b, formatValue(d, s, decimals, unit)...)
 }
 
 // formatNumberDecimal is FormatNumber done entirely with decimal.Decimal; it
@@ -82,17 +99,20 @@ func FormatProbability(d decimal.Decimal) string {
 
 // formatProbability is FormatProbability given d's int64 form s, when it has one.
 func formatProbability(d decimal.Decimal, s small) string {
+	var buf [40]byte
+	return string(appendProbability(buf[:0], d, s))
+}
+
+// appendProbability appends formatProbability(d, s) to b.
+func appendProbability(b []byte, d decimal.Decimal, s small) []byte {
 	const places = 4
 	if mag, neg, ok := roundSmall(s, places); ok {
-		var buf [40]byte
-		b := buf[:0]
 		if neg {
 			b = append(b, '-')
 		}
-		b = appendFixed(b, mag, places, false, true)
-		return string(b)
+		return appendFixed(b, mag, places, false, true)
 	}
-	return d.Round(places).String()
+	return append(b, d.Round(places).String()...)
 }
 
 // roundSmall rounds s half away from zero to the given decimals when it is

@@ -187,6 +187,45 @@ func (r *Result) PathValueText(n *Node) string {
 	return r.format(r.pathValue[n.index], r.pathValueS[n.index])
 }
 
+// The Append forms below append the same texts to b, so a caller printing
+// many numbers can keep them in a few shared buffers.
+
+// AppendProbabilityText appends ProbabilityText(n, i) to b.
+func (r *Result) AppendProbabilityText(b []byte, n *Node, i int) []byte {
+	if !r.has(n) || i < 0 || i >= len(r.probsOf(n.index)) {
+		return append(b, FormatProbability(decimal.Zero)...)
+	}
+	return appendProbability(b, r.probsOf(n.index)[i], r.probSOf(n.index)[i])
+}
+
+// AppendCashText appends CashText(n, i) to b.
+func (r *Result) AppendCashText(b []byte, n *Node, i int) []byte {
+	if !r.has(n) || i < 0 || i >= len(r.cashOf(n.index)) {
+		return append(b, r.Format(decimal.Zero)...)
+	}
+	return appendValue(b, r.cashOf(n.index)[i], r.cashSOf(n.index)[i], r.Project.Decimals, r.Project.Currency)
+}
+
+// AppendValueText appends ValueText(n) to b.
+func (r *Result) AppendValueText(b []byte, n *Node) []byte {
+	if !r.has(n) {
+		return append(b, r.Format(decimal.Zero)...)
+	}
+	if out, ok := appendSmall(b, r.valueS[n.index], r.Project.Decimals, r.Project.Currency); ok {
+		return out
+	}
+	return append(b, r.Format(r.val(n.index))...)
+}
+
+// AppendPathValueText appends PathValueText(n) to b.
+func (r *Result) AppendPathValueText(b []byte, n *Node) []byte {
+	if !r.has(n) {
+		return append(b, r.Format(decimal.Zero)...)
+	}
+	r.forward()
+	return appendValue(b, r.pathValue[n.index], r.pathValueS[n.index], r.Project.Decimals, r.Project.Currency)
+}
+
 func (r *Result) format(d decimal.Decimal, s small) string {
 	return formatValue(d, s, r.Project.Decimals, r.Project.Currency)
 }

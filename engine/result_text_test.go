@@ -45,9 +45,14 @@ func TestResultTextsMatchFormat(t *testing.T) {
 		engine.Walk(p.Root, func(n *engine.Node, _ int) bool {
 			assert.Equal(t, r.Format(r.ValueOf(n)), r.ValueText(n), "value of %s", n.ID)
 			assert.Equal(t, r.Format(r.PathValue(n)), r.PathValueText(n), "path value of %s", n.ID)
+			// the Append forms add the same text after what the buffer holds
+			assert.Equal(t, "x"+r.Format(r.ValueOf(n)), string(r.AppendValueText([]byte("x"), n)), "value of %s", n.ID)
+			assert.Equal(t, "x"+r.Format(r.PathValue(n)), string(r.AppendPathValueText([]byte("x"), n)), "path value of %s", n.ID)
 			for i := range n.Branches {
 				assert.Equal(t, engine.FormatProbability(r.Probability(n, i)), r.ProbabilityText(n, i), "probability %s/%d", n.ID, i)
 				assert.Equal(t, r.Format(r.Cash(n, i)), r.CashText(n, i), "cash %s/%d", n.ID, i)
+				assert.Equal(t, "x"+engine.FormatProbability(r.Probability(n, i)), string(r.AppendProbabilityText([]byte("x"), n, i)), "probability %s/%d", n.ID, i)
+				assert.Equal(t, "x"+r.Format(r.Cash(n, i)), string(r.AppendCashText([]byte("x"), n, i)), "cash %s/%d", n.ID, i)
 			}
 			checked++
 			return true
@@ -61,6 +66,10 @@ func TestResultTextsMatchFormat(t *testing.T) {
 	assert.Equal(t, r.Format(r.PathValue(stranger)), r.PathValueText(stranger))
 	assert.Equal(t, engine.FormatProbability(r.Probability(stranger, 0)), r.ProbabilityText(stranger, 0))
 	assert.Equal(t, r.Format(r.Cash(stranger, 0)), r.CashText(stranger, 0))
+	assert.Equal(t, r.Format(r.ValueOf(stranger)), string(r.AppendValueText(nil, stranger)))
+	assert.Equal(t, r.Format(r.PathValue(stranger)), string(r.AppendPathValueText(nil, stranger)))
+	assert.Equal(t, engine.FormatProbability(r.Probability(stranger, 0)), string(r.AppendProbabilityText(nil, stranger, 0)))
+	assert.Equal(t, r.Format(r.Cash(stranger, 0)), string(r.AppendCashText(nil, stranger, 0)))
 }
 
 // ValueKey lets the layout see whether a value changed without its decimal:
