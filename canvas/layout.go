@@ -246,8 +246,7 @@ func (c *keyedNumber) setKey(k engine.ValueKey, s string) string {
 // nodeEntry is what a Layouter remembers about one node.
 type nodeEntry struct {
 	NodeTexts
-	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed
-	valueSrc                              string
+	labelSrc, probSrc, cashSrc, payoffSrc string // source texts shown as typed (Value only ever shows numbers)
 	prob, cash                            cachedNumber
 	value                                 keyedNumber  // the value beside the node, or an end's path payoff
 	lists                                 *listSources // nil while the node has neither notes nor problems
@@ -397,6 +396,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 	}
 
 	hasNotes := opts.Notes != nil || opts.NoteFunc != nil
+	valueSrc := numberSource // Value shows only numbers (or noValue), so it needs no source of its own
 	lo.ext.reset(th)
 	stack := append(lo.stack[:0], walkItem{p.Root, -1, -1, 0})
 	lo.turn ^= 1
@@ -555,9 +555,9 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 			}
 			switch {
 			case r.Broken(n):
-				number(&e.Value, &e.valueSrc, valT, noValue, th.ValueSize, true)
+				number(&e.Value, &valueSrc, valT, noValue, th.ValueSize, true)
 			case isCE:
-				number(&e.Value, &e.valueSrc, valT, e.value.get(ce, format), th.ValueSize, true)
+				number(&e.Value, &valueSrc, valT, e.value.get(ce, format), th.ValueSize, true)
 			default:
 				s := e.value.s
 				if k := r.ValueKey(n); k.Set() {
@@ -568,7 +568,7 @@ func (lo *Layouter) collect(p *engine.Project, r *engine.Result, l *Layout, opts
 				} else if v := r.ValueOf(n); !e.value.holds(v) {
 					s = e.value.set(v, r.ValueText(n))
 				}
-				number(&e.Value, &e.valueSrc, valT, s, th.ValueSize, true)
+				number(&e.Value, &valueSrc, valT, s, th.ValueSize, true)
 			}
 		default:
 			e.Payoff, e.Value = TextRun{}, TextRun{}
@@ -782,7 +782,7 @@ func (pf *prefiller) fill(i int, e *nodeEntry, tb *textBuffer) {
 	} else {
 		e.value.set(r.ValueOf(n), t)
 	}
-	e.Value, e.valueSrc = TextRun{Text: t, Width: width(t, th.ValueSize, true)}, numberSource
+	e.Value = TextRun{Text: t, Width: width(t, th.ValueSize, true)}
 }
 
 // entryChunk is how many entries one chunk holds: as many as fit in 32 KiB,
